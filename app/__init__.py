@@ -1,0 +1,1 @@
+"""Bandwright's Qt front end: thin views over the core model."""

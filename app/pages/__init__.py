@@ -1,0 +1,1 @@
+"""The main window's pages, in navigation order."""

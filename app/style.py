@@ -1,0 +1,31 @@
+"""Colours, symbols and number formats shared by the views.
+
+The candidate palette is Okabe & Ito's colour-blind-safe set ("Color Universal Design", 2008);
+status colours are chosen from it too and always come with a symbol and a word.
+"""
+
+from __future__ import annotations
+
+from PySide6.QtGui import QColor
+
+__all__ = ["STATUS_STYLE", "candidate_color", "status_color"]
+
+# Okabe–Ito order, black last (reserved for targets and masks).
+_OKABE_ITO = ("#0072B2", "#E69F00", "#009E73", "#CC79A7", "#56B4E9", "#D55E00", "#F0E442")
+
+#: status → (symbol, word, background colour). Blue-green / yellow-orange / vermillion, light.
+STATUS_STYLE: dict[str, tuple[str, str, str]] = {
+    "meets": ("✓", "meets", "#cfe8df"),
+    "marginal": ("~", "marginal", "#f6e3b4"),
+    "misses": ("✗", "misses", "#f3cdb8"),
+    "infeasible": ("!", "not reachable", "#e0e0e0"),
+}
+
+
+def candidate_color(index: int) -> QColor:
+    """Colour of the ``index``-th candidate (cycles through the palette)."""
+    return QColor(_OKABE_ITO[index % len(_OKABE_ITO)])
+
+
+def status_color(status: str) -> QColor:
+    return QColor(STATUS_STYLE.get(status, ("", "", "#ffffff"))[2])
