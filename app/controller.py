@@ -15,8 +15,8 @@ from PySide6.QtCore import QObject, QTimer, Signal
 from PySide6.QtGui import QUndoCommand, QUndoStack
 
 from core.edits import Compound, EditRefused, InsertItem, RemoveItem, SetField, try_apply
+from core.schema import Problem
 from core.study import Study, check_study
-from core.study.schema import Problem
 
 __all__ = ["EditCommand", "StudyController"]
 

@@ -15,7 +15,7 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from core.study.schema import Problem
+from core.schema import Problem
 
 __all__ = ["DerivationDock", "NoticesDock", "derivation_html"]
 

@@ -12,8 +12,8 @@ import re
 from dataclasses import dataclass
 from typing import Any, Protocol
 
+from core.schema import Problem
 from core.study.model import Study
-from core.study.schema import Problem
 from core.study.validate import check_study, errors_of
 
 __all__ = [

@@ -18,7 +18,7 @@ from dataclasses import dataclass
 from enum import StrEnum
 from types import MappingProxyType
 
-from core.study.schema import choice, integer, num, text
+from core.schema import choice, integer, num, text
 
 __all__ = ["DEFAULT_CARDS", "ProcessCard", "Technology", "default_card"]
 

@@ -6,8 +6,8 @@ import json
 from pathlib import Path
 from typing import Literal
 
+from core.schema import encode
 from core.study import Study, check_study
-from core.study.schema import encode
 
 __all__ = ["evaluate_command", "study_summary_text"]
 

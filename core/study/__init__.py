@@ -1,5 +1,6 @@
 """The study document: model, validation and JSON files."""
 
+from core.schema import Problem
 from core.study.io import StudyError, dumps_study, load_study, loads_study, save_study
 from core.study.model import (
     FORMAT_TAG,
@@ -19,7 +20,6 @@ from core.study.model import (
     Weights,
     YieldModelName,
 )
-from core.study.schema import Problem
 from core.study.validate import check_study
 
 __all__ = [

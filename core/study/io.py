@@ -18,8 +18,8 @@ from pathlib import Path
 from typing import Any
 
 from core.fileio import atomic_write_bytes
+from core.schema import Problem, decode, encode
 from core.study.model import FORMAT_TAG, FORMAT_VERSION, Study
-from core.study.schema import Problem, decode, encode
 from core.study.validate import check_study, errors_of
 
 __all__ = [

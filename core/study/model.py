@@ -15,7 +15,7 @@ from enum import StrEnum
 
 from core.bands import Band
 from core.process import DEFAULT_CARDS, ProcessCard
-from core.study.schema import choice, flag, integer, items, nested, num, text
+from core.schema import choice, flag, integer, items, nested, num, text
 
 __all__ = [
     "FORMAT_TAG",

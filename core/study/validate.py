@@ -1,6 +1,6 @@
 """Whole-study validation: the rules that involve more than one field.
 
-Field types and ranges are checked by the codec (:mod:`core.study.schema`) while decoding;
+Field types and ranges are checked by the codec (:mod:`core.schema`) while decoding;
 :func:`check_study` adds the cross-field rules and works on a decoded :class:`Study`, so the
 same rules guard a file being loaded and an edit being made in the GUI.
 """
@@ -11,8 +11,8 @@ import itertools
 from collections import Counter
 
 from core.bands import overlapping_pairs
+from core.schema import Problem, walk_numbers
 from core.study.model import CandidateKind, Study
-from core.study.schema import Problem, walk_numbers
 
 __all__ = ["check_study", "errors_of", "warnings_of"]
 
