@@ -1,0 +1,563 @@
+"""Closed-form PA design, vectorised over designs, samples and frequency (DESIGN.md §4).
+
+One call of :func:`solve` sizes and evaluates a batch of PA designs. The batch is organised in
+*rows* and *designs*:
+
+- a **row** is one (candidate, band) evaluation: the band it is scored on, the frequency points
+  it is evaluated at, and the design band of the circuit state that serves it;
+- a **design** is one physical amplifier (one output periphery, one section count, one stage
+  count). A separate single-band PA is one design per row; a wideband PA is one design serving
+  every band of its candidate; a switched PA is one design whose rows are its switch states.
+
+Rows of a design are contiguous. A leading *sample* axis ``K`` carries independent sizing
+requests (one for :func:`core.estimate.evaluate`, one per P1dB target for
+:func:`core.estimate.sweep_p1db`), so the whole chain is numpy broadcasting with shapes
+``(K, G)`` per design, ``(K, R)`` per row and ``(K, Q)`` per frequency point, the points of
+every (row, section count) segment flattened (:class:`core.pa_points.Points`).
+
+The chain, per design (every step cites its source in the function that does it):
+
+1. Cripps load line per mm: P1dB' = (Vdd − Vk)·Imax'/4 − compression, Ropt·W = 2(Vdd − Vk)/Imax'.
+2. Output network: a Chebyshev transformer from 50 Ω to Ropt over the design band (Pozar §5.7),
+   N = 1…max_sections chosen to maximise the worst power delivered to the RF port, relative to
+   each band's request, over every in-band point the design serves (section loss
+   8.686·π/(4·Q_eff) each, mismatch −10·log10(1 − |Γ|²), combiner, band-select and driver
+   compression losses): the N that needs the smallest output periphery. With equal requests
+   this is the plain worst delivered power.
+3. Binary combining of the unit cells, one lossy quarter-wave section per split level.
+4. Input and interstage networks: Chebyshev transformers of their own (ratio = drive ratio)
+   with the section count chosen by the same rule; their worst in-band loss L_is is paid per
+   stage (the gain equaliser flattens the in-band variation).
+5. Stage count: fewest stages whose flat gain n·(G_st − L_is), G_st the stage gain at the top
+   of the design band (common practice), minus the output network and combiner losses meets
+   every row's gain target plus margin.
+6. Drivers scaled by the drive ratio; a driver that would compress first lowers the P1dB.
+7. Output periphery W: the smallest W whose worst in-band P1dB at the RF port meets target +
+   margin in every row (:func:`_least_feasible`, a few passes).
+8. Efficiency and DC: output DC = P1dB_device/η with η falling from the tuned toward the
+   untuned drain efficiency past the harmonic-control bandwidth
+   (:func:`core.pa_model.drain_efficiency`); driver DC from their periphery and bias; PAE =
+   (P_out − P_in)/ΣP_DC at P1dB per frequency (:func:`_finish`).
+
+Assumptions beyond DESIGN.md, each stated where it is used: the interstage ratio (drive
+ratio), worst-case interstage loss in the gain budget, lossless off switches, a Bode–Fano
+floor on every match, and the section rule weighted by the requests.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+from numpy.typing import NDArray
+
+from core import rf
+from core.pa_model import LOAD_OHM, DesignBatch, Solution, chebyshev_scale
+from core.pa_points import ChosenPoints, point_coordinates, prune
+
+__all__ = ["convexity_holds", "prune_points", "solve"]
+
+#: Iteration cap of the periphery search (it needs 3–8 passes; the cap is a safety net).
+_MAX_PASSES = 40
+#: Relative tolerance of the periphery fixed point.
+_W_RTOL = 1e-10
+
+F64 = NDArray[np.float64]
+INT = NDArray[np.int64]
+
+
+def _q_terms(b: DesignBatch, r: INT, f: F64) -> dict[str, F64]:
+    """Q and section losses at frequencies ``f`` of rows ``r`` (same shape).
+
+    Passive Q scales as (f/f_ref)^exponent (:func:`core.rf.passive_q`). In a state whose
+    switches are on (κ > 1) every section of a retuned network holds switched elements of
+    Q_sw = (f_c/f)/(κ − 1) (:func:`core.rf.switched_element_q`, the optimum with all of the
+    switched capacitance behind the switch), combined as 1/Q_eff = 1/Q_u + 1/Q_sw. An off
+    switch is a lossless Coff in this model, so the all-off (highest-frequency) state has
+    Q_eff = Q_u. Each section then costs 8.686·π/(4·Q_eff) dB
+    (:func:`core.rf.lossy_section_loss_db`).
+    """
+    q_u = np.asarray(rf.passive_q(b.q_ref[r], b.q_ref_hz[r], f, b.q_exponent[r]))
+    on = (b.kappa > 1.0)[r]
+    kap = np.where(on, b.kappa[r], 2.0)  # placeholder > 1 where no switch; masked below
+    q_sw = np.where(on, rf.switched_element_q(b.f_c_hz[r], f, kap), np.inf)
+    q_eff = np.asarray(rf.combine_q(q_u, q_sw))
+    return {
+        "q_u": q_u,
+        "q_sw": q_sw,
+        "q_eff": q_eff,
+        "l_p": np.asarray(rf.lossy_section_loss_db(q_u)),
+        "l_sw": np.asarray(rf.lossy_section_loss_db(q_sw)),
+        "l_sec": np.asarray(rf.lossy_section_loss_db(q_eff)),
+    }
+
+
+def _constants(b: DesignBatch) -> dict[str, F64]:
+    """Per-point quantities that do not depend on the periphery, each (Q,).
+
+    On a uniform grid the Q terms are computed once per (row, f) and h_N once per distinct
+    (grid, design band) — rows of different candidates often share them — then expanded to
+    every section count.
+    """
+    pts = b.points
+    n_r, n_s = b.n_rows, pts.n_sections
+    if pts.uniform is not None:
+        n_f = pts.uniform
+        grid = pts.f_hz.reshape(n_r, n_s, n_f)[:, 0, :]
+        t = _q_terms(b, np.arange(n_r)[:, None], grid)
+
+        def expand(x: F64) -> F64:
+            return np.broadcast_to(x[:, None, :], (n_r, n_s, n_f)).reshape(-1)
+
+        c = {k: expand(v) for k, v in t.items()}
+        key = np.column_stack([grid[:, 0], grid[:, -1], b.f0_hz, b.bw_frac])
+        _, first, inverse = np.unique(key, axis=0, return_index=True, return_inverse=True)
+        n_sec = np.arange(1, n_s + 1, dtype=float)[None, :, None]
+        # Pozar's ln form with R = e² has a ½|ln R| scale of 1: it returns h_N(f) itself.
+        h = rf.chebyshev_reflection(
+            grid[first][:, None, :],
+            b.f0_hz[first][:, None, None],
+            np.e**2,
+            n_sec,
+            b.bw_frac[first][:, None, None],
+            method="pozar_ln",
+        )
+        c["h"] = np.asarray(h)[inverse.reshape(-1)].reshape(-1)
+    else:
+        c = _q_terms(b, pts.row, pts.f_hz)
+        c["h"] = point_coordinates(c["q_u"], c["q_sw"], pts, b.f0_hz, b.bw_frac)[2]
+    c["bf"] = np.asarray(
+        rf.bode_fano_min_reflection(b.ropt_ohm_mm, b.c_out_f_per_mm, b.f_low_hz, b.f_high_hz)
+    )
+    c["net"] = pts.n_sec * c["l_sec"]
+    return c
+
+
+def _interstage(b: DesignBatch, c: dict[str, F64]) -> tuple[F64, INT]:
+    """Worst in-band loss of one input/interstage network (R,) and its section count (G,).
+
+    Each of the n networks ahead of the output stage (input match and n − 1 interstage
+    matches) is a Chebyshev transformer over the design band, like the output network, with
+    its own section count chosen by the same rule: the N = 1 … S that minimises the worst
+    in-band N·L_sec + mismatch over every row of the design. Its transformation ratio is taken
+    as the drive ratio, the step between the load-line levels of successive stages (Ropt of a
+    stage scales as 1/periphery); the card has no input-impedance figure, so this is a proxy.
+    Its worst in-band loss is what the gain budget pays per network: the designer's gain
+    equalisation flattens the in-band variation (DESIGN.md §4 Gain). The Bode–Fano floor of
+    the driver's own Ropt–Cout (the same R·C product as the output device) applies.
+
+    Needs the full (uniform) grid.
+    """
+    pts = b.points
+    if pts.uniform is None:
+        raise ValueError("b: interstage networks need the full grid of Points.from_grid")
+    r_is = chebyshev_scale(b.drive_ratio)[pts.row]
+    v = r_is * c["h"]
+    gam = np.maximum(v / np.sqrt(1.0 + v * v), c["bf"][pts.row])
+    loss = c["net"] + np.asarray(rf.mismatch_loss_db(gam))
+    worst = pts.seg_max(loss[None, :])[0]  # (R, S)
+    n_is = np.maximum.reduceat(worst, b.starts, axis=0).argmin(axis=1)
+    return worst[np.arange(b.n_rows), n_is[b.group]], (n_is + 1).astype(np.int64)
+
+
+def prune_points(b: DesignBatch) -> tuple[DesignBatch, NDArray[np.bool_]]:
+    """The batch on the worst-case points only (:func:`core.pa_points.prune`).
+
+    Returns
+    -------
+    pruned : DesignBatch
+    convex_rows : ndarray of bool, (R,)
+        Rows whose pruning assumed a convex mismatch term; check with :func:`convexity_holds`.
+    """
+    c = _constants(b)
+    pts, convex_rows = prune(b.points, c["l_p"], c["l_sw"], c["h"])
+    is_db, is_sec = _interstage(b, c)
+    pruned = b.with_points(pts)
+    pruned = DesignBatch(
+        **{
+            **{f: getattr(pruned, f) for f in pruned.__dataclass_fields__},
+            "interstage_db": is_db,
+            "interstage_sections": is_sec,
+        }
+    )
+    return pruned, convex_rows
+
+
+def initial_periphery(b: DesignBatch, p_req_w: F64, c: dict[str, F64]) -> F64:
+    """Start of the periphery iteration, (K, G): a proven lower bound of the fixed point.
+
+    Whatever the periphery and section count N, the worst in-band loss from device to RF port
+    is at least the output network's worst dissipative loss N·L_sec over the band plus the
+    band-select loss (mismatch, splits and driver deficit are ≥ 0), so W ≥ P_req/(P1dB'·
+    10^(−L_min/10)) with L_min the smallest of those over N; no feasible W lies below it,
+    so the search may start there (it saves a pass over the lossless requirement).
+    """
+    l_min = b.points.seg_max(c["net"]).min(axis=-1) + b.band_select_db
+    w0 = p_req_w / (b.p1db_w_per_mm * 10.0 ** (-l_min / 10.0))[None, :]
+    return np.maximum(np.maximum.reduceat(w0, b.starts, axis=1), 1e-9)
+
+
+def convexity_holds(b: DesignBatch, sol: Solution, rows: NDArray[np.bool_]) -> NDArray[np.bool_]:
+    """Whether pruning rule 3 of :func:`core.pa_points.prune` was exact for each sample, (K,).
+
+    Every pass of the iteration is at a W between the first and the largest visited periphery,
+    and the ripple |Γ|m(r) is quasi-convex in log r, so checking every section count at those
+    two covers every pass: |Γ|m ≤ 1/√2 ⇔ a·h_max ≤ 1.
+    """
+    ok = np.ones(sol.w_out_mm.shape[0], dtype=bool)
+    if not rows.any():
+        return ok
+    n_sec = np.arange(1, b.max_sections + 1, dtype=float)[None, None, :]
+    cap = (b.max_cells * b.cell_max_mm)[b.starts][None, :]
+    for w in (np.minimum(sol.w_first_mm, cap), np.minimum(sol.w_peak_mm, cap)):
+        ratio = LOAD_OHM * w[:, b.group][:, rows] / b.ropt_ohm_mm[rows][None, :]
+        gm = rf.chebyshev_max_reflection(ratio[..., None], n_sec, b.bw_frac[rows][None, :, None])
+        ok &= (np.asarray(gm) <= 2.0**-0.5).all(axis=(1, 2))
+    return ok
+
+
+def _stage_rule(b: DesignBatch, c: dict[str, F64], rest: F64) -> tuple[INT, NDArray[np.bool_]]:
+    """Fewest stages n whose worst gain n·(G_st − L_is) − rest meets every row's target + margin.
+
+    ``rest`` (K, R) is the worst in-band loss of the output network and combiner; each of the n
+    networks ahead of the output stages costs the interstage loss L_is. Returns the stage count
+    (K, G) and whether a count was found (True when it is fixed).
+    """
+    m = int(max(b.max_stages.max(), b.stages_fixed.max()))
+    n_all = np.arange(1, m + 1, dtype=float)
+    worst = n_all * (b.stage_gain_db - c["is_db"])[None, :, None] - rest[..., None]
+    meets = worst >= b.gain_req_db[None, :, None] - 1e-12
+    meets_g = np.logical_and.reduceat(meets, b.starts, axis=1)
+    max_st = b.per_design("max_stages")
+    meets_g &= n_all[None, None, :] <= max_st[None, :, None]
+    found = meets_g.any(axis=-1)
+    n_auto = np.where(found, meets_g.argmax(axis=-1) + 1, max_st[None, :])
+    fixed = b.per_design("stages_fixed")[None, :]
+    return np.where(fixed > 0, fixed, n_auto).astype(np.int64), found | (fixed > 0)
+
+
+def _pass(b: DesignBatch, c: dict[str, F64], w_g: F64, req_db: F64) -> dict:
+    """One evaluation of the chain at output periphery ``w_g`` (K, G); see the module notes.
+
+    ``req_db`` (K, R) is 10·log10 of each row's request (−inf where there is none).
+    """
+    pts = b.points
+    g, pr = b.group, pts.row
+    cell, max_cells = c["cell_g"], c["max_cells_g"]
+    # Unit cells: the largest cell shrinks as 1/f (cell_max_mm is already at the design top).
+    n_need = np.maximum(1.0, np.ceil(w_g / cell - 1e-9))
+    n_cells = np.minimum(n_need, max_cells)
+    w_eff = np.minimum(w_g, max_cells * cell)
+    # Binary combining tree: ceil(log2 n) split levels, one lossy λ/4 section per level.
+    levels = np.maximum(0.0, np.ceil(np.log2(n_cells) - 1e-9)) + 0.0  # + 0.0: no −0.0
+    ratio = LOAD_OHM * w_eff[:, g] / b.ropt_ohm_mm[None, :]  # r = 50·W/(Ropt·W), DESIGN §4
+    # Exact Chebyshev response v = a(r)·h_N (see chebyshev_scale), floored at the Bode–Fano
+    # bound (Pozar §5.9); its mismatch loss is the insertion-loss function 10·log10(1 + v²),
+    # equal to −10·log10(1 − |Γ|²) with |Γ|² = v²/(1 + v²) (Pozar §8.3).
+    v = np.maximum(chebyshev_scale(ratio)[:, pr] * c["h"], c["v_bf"])
+    ml = 10.0 * np.log10(1.0 + v * v)
+    # Section count: the N that maximises the worst in-band power delivered to the RF port
+    # relative to each row's request — the N needing the smallest output periphery. Losses:
+    # network, mismatch, combiner, band-select and driver compression (counted wherever the
+    # design can have drivers). Rows without a request (sweep) do not vote.
+    comb_all = levels[:, g][:, pr] * c["l_p"]  # the combiner is not retuned: passive Q
+    need = pts.seg_max(c["net"] + ml + comb_all) + (c["port"] + req_db)[..., None]
+    s_g = np.maximum.reduceat(need, b.starts, axis=1).argmin(axis=-1)  # fewest on ties
+    ch = ChosenPoints(pts, c["seg0"] + s_g[:, g])
+    v, ml = ch.take(v), ch.take(ml)
+    net, comb = ch.take(c["net"]), ch.take(comb_all)
+    out = net + ml + comb
+    n_st, found = _stage_rule(b, c, ch.row_max(out))
+    # Last driver at the output stage's P1dB: it must deliver P1dB/(G − 1 dB) through one
+    # interstage network, with 1/drive_ratio of the output periphery.
+    head = np.where(n_st[:, g] >= 2, c["head"][None, :], np.inf)
+    deficit = np.maximum(0.0, -head)
+    loss = out + b.band_select_db[ch.row] + deficit[:, ch.row]
+    return {
+        "w_eff": w_eff,
+        "n_need": n_need,
+        "n_cells": n_cells,
+        "levels": levels,
+        "ratio": ratio,
+        "s_g": s_g,
+        "ch": ch,
+        "v": v,
+        "ml": ml,
+        "net": net,
+        "comb": comb,
+        "n_st": n_st,
+        "found": found,
+        "head": head,
+        "deficit": deficit,
+        "loss": loss,
+        "worst_loss": ch.row_max(loss),
+    }
+
+
+def _required(b: DesignBatch, st: dict, p_req_w: F64) -> F64:
+    """Output periphery each design needs for its requests at this pass's losses, (K, G)."""
+    w = p_req_w / (b.p1db_w_per_mm[None, :] * 10.0 ** (-st["worst_loss"] / 10.0))
+    return np.maximum.reduceat(w, b.starts, axis=1)
+
+
+def _store(full: dict | None, part: dict, rows: INT, k_n: int) -> dict:
+    """Write the pass ``part`` of samples ``rows`` into the per-sample store ``full``.
+
+    Arrays lead with the sample axis, or with 1 for constants of a pruned grid (broadcast).
+    """
+    if full is None:
+        full = {
+            k: np.empty((k_n, *v.shape[1:]), dtype=v.dtype) for k, v in part.items() if k != "ch"
+        }
+        full["seg"] = np.empty((k_n, part["ch"].seg.shape[1]), dtype=np.int64)
+    for k, v in part.items():
+        if k == "ch":
+            full["seg"][rows] = v.seg
+        else:
+            full[k][rows] = v
+    return full
+
+
+def _least_feasible(b: DesignBatch, c: dict, p_req_w: F64, w_first: F64):
+    """Smallest periphery W with W_req(W) ≤ W for every design of every sample.
+
+    W is feasible when the design built at W reaches every request (W_req(W) ≤ W). From the
+    proven lower bound ``w_first`` the iteration grows W (W ← W_req(W), or a secant step in
+    log W once the discrete decisions repeat) until a feasible W is found. From then on it
+    keeps the bracket [largest infeasible, smallest feasible] and takes regula-falsi steps on
+    F = ln W_req − ln W inside it (Illinois variant: the endpoint kept twice has its F halved),
+    which converges fast also across a change of cells, sections or stages. A design is done
+    when it is feasible and within the tolerance of the fixed point or of the bracket's lower
+    end, so the result does not depend on the path — also where the loss falls as W grows
+    (Ropt > 50 Ω) or jumps at a cell-count boundary. Only samples not yet done are passed on,
+    and each sample's last pass is kept.
+
+    Returns
+    -------
+    w_peak : ndarray, (K, G)
+        Largest periphery visited.
+    st : dict
+        The pass at the final periphery of every sample.
+    passes : int
+    """
+    k_n, g_n = w_first.shape
+    req_db = np.full(p_req_w.shape, -np.inf)
+    np.log10(p_req_w, out=req_db, where=p_req_w > 0)
+    req_db *= 10.0
+    w = w_first.copy()
+    lo, hi = np.zeros_like(w), np.full_like(w, np.inf)
+    f_lo, f_hi = np.zeros_like(w), np.zeros_like(w)
+    side = np.zeros_like(w)
+    peak = w.copy()
+    prev_lw, prev_lr = np.zeros_like(w), np.zeros_like(w)
+    prev_dec = np.full((k_n, 3 * g_n), -1.0)
+    active = np.arange(k_n)
+    passes = 0
+    store: dict | None = None
+    while active.size:
+        wa = w[active]
+        st = _pass(b, c, wa, req_db[active])
+        passes += 1
+        req = _required(b, st, p_req_w[active])
+        lw, lr = np.log(wa), np.log(req)
+        f = lr - lw
+        feas = req <= wa * (1.0 + _W_RTOL)
+        sd = side[active]
+        lo_a = np.where(feas, lo[active], wa)
+        hi_a = np.where(feas, wa, hi[active])
+        flo = np.where(feas, np.where(sd > 0, 0.5 * f_lo[active], f_lo[active]), f)
+        fhi = np.where(feas, f, np.where(sd < 0, 0.5 * f_hi[active], f_hi[active]))
+        done = feas & ((req >= wa * (1.0 - _W_RTOL)) | (wa <= lo_a * (1.0 + _W_RTOL)))
+        # Growth phase: secant step in log W once the discrete decisions repeat.
+        dec = np.concatenate([st["n_cells"], st["n_st"], st["s_g"]], axis=1).astype(float)
+        dx, dy = lw - prev_lw[active], lr - prev_lr[active]
+        same = (dec == prev_dec[active]).all(axis=1)[:, None] & (np.abs(dx) > 1e-13)
+        slope = np.divide(dy, dx, out=np.zeros_like(dx), where=same)
+        use = same & (slope > -5.0) & (slope < 0.9)
+        grow = np.where(use, lw + (lr - lw) / (1.0 - np.where(use, slope, 0.0)), lr)
+        # Bracket phase: regula falsi on F(ln W) between the endpoints.
+        bracketed = np.isfinite(hi_a) & (lo_a > 0.0)
+        l_lo = np.log(np.where(bracketed, lo_a, 1.0))
+        l_hi = np.log(np.where(bracketed, hi_a, 1.0))
+        t = np.divide(flo, flo - fhi, out=np.full_like(flo, 0.5), where=flo > fhi)
+        inner = l_lo + np.clip(t, 0.0, 1.0) * (l_hi - l_lo)
+        nxt = np.exp(np.where(bracketed, inner, np.maximum(grow, lw)))
+        tight = bracketed & (hi_a <= lo_a * (1.0 + _W_RTOL))
+        nxt = np.where(tight, hi_a, nxt)
+        nxt = np.where(done, wa, nxt)
+        prev_lw[active], prev_lr[active], prev_dec[active] = lw, lr, dec
+        lo[active], hi[active], f_lo[active], f_hi[active] = lo_a, hi_a, flo, fhi
+        side[active] = np.where(feas, 1.0, -1.0)
+        w[active] = nxt
+        peak[active] = np.maximum(peak[active], nxt)
+        finished = done.all(axis=1)
+        if passes >= _MAX_PASSES:  # not seen in practice: settle on the smallest feasible W
+            finished[:] = True
+        if finished.all() and active.size == k_n and passes < _MAX_PASSES:
+            return peak, st, passes  # that pass was at every sample's final periphery
+        if finished.any():
+            rows = active[finished]
+            if passes >= _MAX_PASSES:
+                w[rows] = np.where(np.isfinite(hi[rows]), hi[rows], w[rows])
+                part = _pass(b, c, w[rows], req_db[rows])
+            else:
+                part = _slice(st, finished)
+            store = _store(store, part, rows, k_n)
+        active = active[~finished]
+    assert store is not None
+    store["ch"] = ChosenPoints(b.points, store.pop("seg"))
+    return peak, store, passes
+
+
+def _slice(st: dict, keep: NDArray[np.bool_]) -> dict:
+    """The samples ``keep`` of a pass."""
+    out = {}
+    for k, v in st.items():
+        if k == "ch":
+            out[k] = ChosenPoints.__new__(ChosenPoints)
+            out[k].seg = v.seg[keep]
+        else:
+            out[k] = v[keep] if v.shape[0] == keep.shape[0] else v
+    return out
+
+
+def solve(b: DesignBatch, p_req_w: F64) -> Solution:
+    """Size and evaluate every design of ``b`` for the RF-port P1dB requests ``p_req_w``.
+
+    Parameters
+    ----------
+    b : DesignBatch
+        Rows, design states, process figures and design rules.
+    p_req_w : ndarray, (K, R)
+        Required worst in-band P1dB at each row's RF port, target plus design margin (W). A
+        zero leaves the row unconstrained (its design is sized by the other rows).
+
+    Returns
+    -------
+    Solution
+        Sizing, per-design decisions and worst-case performance; per-point curves when the
+        points are a uniform grid.
+
+    Raises
+    ------
+    ValueError
+        If ``p_req_w`` has the wrong shape or a negative or non-finite entry.
+
+    Notes
+    -----
+    The periphery is the smallest W whose design reaches every request: W ≥ W_req(W) = max
+    over the design's rows of P_req/(P1dB'·10^(−L(W)/10)), L the worst in-band loss from
+    device to RF port. L(W) moves with the ratio (mismatch), the cell count (split levels),
+    the section and stage choices; :func:`_least_feasible` finds it in a few passes.
+
+    Output DC = P1dB_device/η (DESIGN.md §4 "Efficiency"); driver DC = Vdd·bias·Imax'·W_drivers
+    (class-AB quiescent current, common practice); PAE = (P_out − P_in)/ΣP_DC at P1dB, with
+    P_in = P_out/G and G 1 dB below the small-signal gain (the definition of P1dB).
+
+    References
+    ----------
+    S. C. Cripps, RF Power Amplifiers for Wireless Communications, 2nd ed., ch. 2 (load line).
+    D. M. Pozar, Microwave Engineering, 4th ed., §5.7 (Chebyshev transformer), §5.9 (Bode–Fano).
+
+    Examples
+    --------
+    See :func:`core.estimate.evaluate`, which builds the batch from a study.
+    """
+    p_req_w = np.asarray(p_req_w, dtype=float)
+    if p_req_w.ndim != 2 or p_req_w.shape[1] != b.n_rows:
+        raise ValueError(f"p_req_w: must have shape (K, {b.n_rows}), got {p_req_w.shape}")
+    if not np.isfinite(p_req_w).all() or (p_req_w < 0).any():
+        raise ValueError("p_req_w: must be finite and non-negative")
+    c = _constants(b)
+    if b.interstage_db is None or b.interstage_sections is None:
+        c["is_db"], c["is_sec"] = _interstage(b, c)
+    else:
+        c["is_db"], c["is_sec"] = b.interstage_db, b.interstage_sections
+    # Driver headroom: G − 1 dB − 10·log10(drive ratio) − L_is (see _pass).
+    c["head"] = b.stage_gain_db - 1.0 - 10.0 * np.log10(b.drive_ratio) - c["is_db"]
+    c["cell_g"] = b.per_design("cell_max_mm")[None, :]
+    c["max_cells_g"] = b.per_design("max_cells")[None, :]
+    c["seg0"] = np.arange(b.n_rows)[None, :] * b.points.n_sections
+    bf = np.minimum(c["bf"], 1.0 - 1e-12)  # a bound of 1 would mean no match at all
+    c["v_bf"] = (bf / np.sqrt(1.0 - bf**2))[b.points.row]  # |Γ| = v/√(1 + v²)
+    may_drive = np.where(b.stages_fixed > 0, b.stages_fixed, b.max_stages) >= 2
+    c["port"] = b.band_select_db + np.where(may_drive, np.maximum(0.0, -c["head"]), 0.0)
+    w_first = initial_periphery(b, p_req_w, c)
+    w_peak, st, passes = _least_feasible(b, c, p_req_w, w_first)
+    return _finish(b, c, st, w_first, w_peak, passes)
+
+
+def _finish(b: DesignBatch, c: dict, st: dict, w_first: F64, w_peak: F64, passes: int) -> Solution:
+    ch: ChosenPoints = st["ch"]
+    g = b.group
+    n_sec_g = (st["s_g"] + 1).astype(np.int64)
+    nst_r = st["n_st"][:, g]
+    w_r = st["w_eff"][:, g]
+    ratio = st["ratio"]
+    gamma_max = np.asarray(rf.chebyshev_max_reflection(ratio, n_sec_g[:, g], b.bw_frac[None, :]))
+    p_dev = b.p1db_w_per_mm[None, :] * w_r
+    # Driver k (k = 1 … n − 1 counted back from the output) has W_out/ratio^k.
+    k = np.arange(1, max(int(nst_r.max()), 1), dtype=float)
+    pw = b.drive_ratio[None, :, None] ** (-k[None, None, :])
+    w_drv = w_r * np.where(k[None, None, :] <= nst_r[..., None] - 1, pw, 0.0).sum(axis=-1)
+    dc_out = p_dev / b.eta[None, :]
+    dc_drv = (b.vdd_v * b.driver_bias * b.i_max_a_per_mm)[None, :] * w_drv
+    nst_q = nst_r[:, ch.row].astype(float)
+    gain = nst_q * (b.stage_gain_db - c["is_db"])[ch.row] - st["net"] - st["ml"] - st["comb"]
+    p1db = np.asarray(rf.w_to_dbm(p_dev))[:, ch.row] - st["loss"]
+    p_out = np.asarray(rf.dbm_to_w(p1db))
+    p_in = p_out * 10.0 ** (-(gain - 1.0) / 10.0)
+    pae = (p_out - p_in) / (dc_out + dc_drv)[:, ch.row]
+    curves = None
+    if ch.uniform is not None:
+        shape = (ch.k_n, ch.r_n, ch.uniform)
+        per_point = {
+            "f_hz": b.points.f_hz,
+            "q_u": c["q_u"],
+            "q_sw": c["q_sw"],
+            "q_eff": c["q_eff"],
+            "l_passive_db": c["l_p"],
+            "l_section_db": c["l_sec"],
+        }
+        curves = {k: ch.take(v).reshape(shape) for k, v in per_point.items()}
+        gamma = st["v"] / np.sqrt(1.0 + st["v"] ** 2)
+        chosen = {
+            "gamma": gamma,
+            "mismatch_db": np.asarray(rf.mismatch_loss_db(gamma)),
+            "network_db": st["net"],
+            "combiner_db": st["comb"],
+            "headroom_db": st["head"][:, ch.row],
+            "deficit_db": st["deficit"][:, ch.row],
+            "p1db_loss_db": st["loss"],
+            "gain_db": gain,
+            "p1db_dbm": p1db,
+            "pae": pae,
+        }
+        curves.update(
+            {k: np.broadcast_to(v, (ch.k_n, v.shape[-1])).reshape(shape) for k, v in chosen.items()}
+        )
+    return Solution(
+        w_out_mm=st["w_eff"],
+        n_cells_needed=st["n_need"],
+        n_cells=st["n_cells"],
+        cells_ok=st["n_need"] <= b.per_design("max_cells")[None, :],
+        levels=st["levels"],
+        n_sections=n_sec_g,
+        n_stages=st["n_st"],
+        gain_found=st["found"],
+        ratio=ratio,
+        gamma_max=gamma_max,
+        bf_gamma=c["bf"],
+        p_dev_w=p_dev,
+        w_drivers_mm=w_drv,
+        dc_out_w=dc_out,
+        dc_drivers_w=dc_drv,
+        worst_gain_db=ch.row_min(gain),
+        worst_p1db_dbm=ch.row_min(p1db),
+        worst_pae=ch.row_min(pae),
+        worst_headroom_db=st["head"],
+        interstage_db=c["is_db"],
+        interstage_sections=c["is_sec"],
+        curves=curves,
+        w_first_mm=w_first,
+        w_peak_mm=w_peak,
+        passes=passes,
+    )

@@ -1,0 +1,158 @@
+"""P1dB-target sweep of the PA designs, vectorised over the target axis (array sizing).
+
+Used by :func:`core.estimate.sweep_p1db`. The designs are those of
+:func:`core.estimate.evaluate`; only the sizing request changes. Two solves cover a study:
+
+- separate single-band rows, one design per row: sample t sizes every row for target t;
+- wideband and switched rows, one design per candidate: sample (j, t) sizes the design so that
+  band j meets target t, the other rows unconstrained (request 0), K = n_bands × T.
+
+Both solve on the worst-case points only (:func:`core.pa_design.prune_points`); the samples
+for which the pruning's convexity condition does not hold are solved again on the full grid.
+"""
+
+from __future__ import annotations
+
+from dataclasses import fields, replace
+
+import numpy as np
+import pandas as pd
+from numpy.typing import NDArray
+
+from core import rf
+from core.architectures import Plan
+from core.pa_design import convexity_holds, prune_points, solve
+from core.pa_layout import LayoutParams, layout
+from core.pa_model import BF_GAMMA_LIMIT, DesignBatch, Solution
+from core.pa_points import Points
+from core.study.model import CandidateKind, DieArrangement, Study
+
+__all__ = ["sweep_table"]
+
+_REASONS = (
+    "P1dB needs more unit cells than the card combines",
+    "gain target not reachable within the stage limit",
+    "Bode–Fano bound leaves the load unmatched (VSWR > 2)",
+)
+
+
+def _subset(plan: Plan, rows: NDArray[np.int64]) -> tuple[DesignBatch, LayoutParams, dict]:
+    """Batch, layout and per-row extras of whole designs ``rows`` (row indices, in order)."""
+    b = plan.batch
+    n_r = b.n_rows
+    grid = b.points.f_hz.reshape(n_r, b.points.n_sections, -1)[:, 0, :]
+    group = b.group[rows]
+    new_group = np.cumsum(np.r_[True, group[1:] != group[:-1]]) - 1
+    starts = np.flatnonzero(np.r_[True, group[1:] != group[:-1]]).astype(np.int64)
+    values = {}
+    for f in fields(b):
+        v = getattr(b, f.name)
+        if f.name == "starts":
+            v = starts
+        elif f.name == "group":
+            v = new_group.astype(np.int64)
+        elif f.name == "points":
+            v = Points.from_grid(grid[rows], b.points.n_sections)
+        elif v is not None:
+            v = v[rows]
+        values[f.name] = v
+    lp = LayoutParams(**{f.name: getattr(plan.layout, f.name)[rows] for f in fields(plan.layout)})
+    extra = {
+        "overhead": plan.overhead[rows],
+        "min_die": plan.min_die_mm2[rows],
+        "gain_target": plan.gain_target_db[rows],
+    }
+    return DesignBatch(**values), lp, extra
+
+
+def _merge(a: Solution, b: Solution, where: NDArray[np.bool_]) -> Solution:
+    changes = {}
+    for f in fields(a):
+        x, y = getattr(a, f.name), getattr(b, f.name)
+        if isinstance(x, np.ndarray) and x.ndim >= 2 and x.shape[0] == where.shape[0]:
+            x = x.copy()
+            x[where] = y
+            changes[f.name] = x
+    return replace(a, **changes, curves=None)
+
+
+def _solve_part(full: DesignBatch, p_req: NDArray[np.float64]) -> tuple[DesignBatch, Solution]:
+    pruned, convex = prune_points(full)
+    sol = solve(pruned, p_req)
+    ok = convexity_holds(pruned, sol, convex)
+    if not ok.all():  # pruning rule 3 was not exact for these requests: full grid
+        sol = _merge(sol, solve(full, p_req[~ok]), ~ok)
+    return pruned, sol
+
+
+def _part(study: Study, plan: Plan, rows: NDArray[np.int64], x: NDArray, grouped: bool):
+    """Per-row (T, R_part) results of one solve: feasible, DC, die area, reason code."""
+    b, lp, extra = _subset(plan, rows)
+    n_t, n_r = x.shape[0], rows.shape[0]
+    p = np.asarray(rf.dbm_to_w(x + study.estimator.p1db_margin_db))
+    if grouped:
+        n_b = len(plan.bands)
+        band = plan.row_band[rows]
+        p_req = np.where(
+            band[None, None, :] == np.arange(n_b)[:, None, None], p[None, :, None], 0.0
+        )
+        p_req = p_req.reshape(n_b * n_t, n_r)
+    else:
+        p_req = np.broadcast_to(p[:, None], (n_t, n_r)).copy()
+    pruned, sol = _solve_part(b, p_req)
+    lay = layout(pruned, lp, sol, extra["overhead"])
+    g = b.group
+    cells_bad = ~sol.cells_ok[:, g] & (sol.worst_p1db_dbm < _x_rows(x, p_req.shape[0], n_t))
+    gain_bad = ~sol.gain_found[:, g] & (sol.worst_gain_db < extra["gain_target"][None, :])
+    bf_bad = np.broadcast_to(sol.bf_gamma > BF_GAMMA_LIMIT, cells_bad.shape)
+    code = cells_bad.astype(int) + 2 * gain_bad + 4 * bf_bad
+    dc = sol.dc_out_w + sol.dc_drivers_w
+    cand = [plan.candidates[i] for i in plan.row_cand[rows]]
+    shared = np.array(
+        [
+            c.kind == CandidateKind.SEPARATE and c.die_arrangement == DieArrangement.SHARED_DIE
+            for c in cand
+        ]
+    )
+    a_design = lay["area_design_mm2"][:, g]
+    area = np.where(shared[None, :], a_design, np.maximum(extra["min_die"][None, :], a_design))
+    if grouped:  # keep sample (j, t) for the row of band j
+        pick = plan.row_band[rows][None, :] * n_t + np.arange(n_t)[:, None]
+        code, dc, area = (np.take_along_axis(v, pick, axis=0) for v in (code, dc, area))
+    return code, dc, area
+
+
+def _x_rows(x: NDArray, k_n: int, n_t: int) -> NDArray:
+    """The P1dB target of each sample as a column, (K, 1): samples are (band, target)-major."""
+    return np.tile(x, k_n // n_t)[:, None]
+
+
+def sweep_table(study: Study, plan: Plan, x: NDArray[np.float64]) -> pd.DataFrame:
+    """Rows candidate × band × target of :func:`core.estimate.sweep_p1db`."""
+    kinds = np.array([c.kind for c in plan.candidates], dtype=object)[plan.row_cand]
+    separate = kinds == CandidateKind.SEPARATE
+    n_t, n_r = x.shape[0], plan.n_rows
+    code = np.zeros((n_t, n_r), dtype=int)
+    dc = np.zeros((n_t, n_r))
+    area = np.zeros((n_t, n_r))
+    for mask, grouped in ((separate, False), (~separate, True)):
+        rows = np.flatnonzero(mask)
+        if rows.size:
+            code[:, rows], dc[:, rows], area[:, rows] = _part(study, plan, rows, x, grouped)
+    table = np.array(
+        ["; ".join(r for bit, r in enumerate(_REASONS) if c >> bit & 1) for c in range(8)],
+        dtype=object,
+    )
+    names = np.array([c.name for c in plan.candidates], dtype=object)[plan.row_cand]
+    bands = np.array([b.name for b in plan.bands], dtype=object)[plan.row_band]
+    return pd.DataFrame(
+        {
+            "candidate": np.repeat(names, n_t),
+            "band": np.repeat(bands, n_t),
+            "p1db_target_dbm": np.tile(x, n_r),
+            "feasible": (code == 0).T.reshape(-1),
+            "dc_power_w": dc.T.reshape(-1),
+            "die_area_mm2": area.T.reshape(-1),
+            "reason": table[code.T.reshape(-1)],
+        }
+    )
