@@ -20,6 +20,12 @@ from core.study import Study, check_study
 
 __all__ = ["EditCommand", "StudyController"]
 
+#: Standing caution listed in Notices (the Link Ledger repeats it beside every EIRP figure).
+CAUTION_TEXT = (
+    "Estimates for comparing architectures, not a design sign-off. RF exposure, transmit power "
+    "and emission limits are set by local regulation: defer to it and to licensed practice."
+)
+
 #: Undo-command id shared by all field edits, so Qt offers them to mergeWith().
 _SET_FIELD_ID = 1001
 
@@ -78,6 +84,9 @@ class StudyController(QObject):
         self._path = path
         self.undo_stack = QUndoStack(self)
         self.evaluation: Any = None
+        #: Cost model result and weighted scores of the current evaluation (core.costing).
+        self.cost: Any = None
+        self.scores: Any = None
         self.eval_seconds = 0.0
         self._refusals: list[Problem] = []
         self.last_refusal = ""
@@ -163,11 +172,14 @@ class StudyController(QObject):
     # -- evaluation ----------------------------------------------------------------------
     def recompute(self) -> None:
         """Evaluate the study now (normally triggered by the debounce timer)."""
+        from core.costing import cost_study, weighted_scores
         from core.estimate import evaluate
 
         self._eval_timer.stop()
         t0 = time.perf_counter()
         self.evaluation = evaluate(self._study)
+        self.cost = cost_study(self._study, self.evaluation)
+        self.scores = weighted_scores(self._study, self.evaluation, self.cost)
         self.eval_seconds = time.perf_counter() - t0
         self.evaluation_changed.emit(self.evaluation, self.eval_seconds)
         self._emit_notices()
@@ -183,10 +195,12 @@ class StudyController(QObject):
         out += [p for p in check_study(self._study) if p.severity == "warning"]
         ev = self.evaluation
         if ev is not None:
-            for f in getattr(ev, "findings", ()):
-                where = f.candidate + (f" · {f.band}" if f.band else "")
-                sev = "error" if f.severity == "error" else "warning"
+            findings = list(ev.findings) + list(getattr(self.cost, "findings", ()))
+            for f in findings:
+                where = f.candidate + (f" · {f.band}" if getattr(f, "band", None) else "")
+                sev = {"error": "error", "warning": "warning"}.get(f.severity, "note")
                 out.append(Problem(where, f.message, sev))
+        out.append(Problem("cautions", CAUTION_TEXT, "note"))
         return out
 
     def _emit_notices(self) -> None:

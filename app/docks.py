@@ -104,13 +104,15 @@ class NoticesDock(QDockWidget):
         self.problems = list(problems)
         self.table.setRowCount(len(problems))
         for row, p in enumerate(problems):
-            mark = {"error": "✗ error", "warning": "⚠ warning"}.get(p.severity, "ℹ note")
+            mark = {"error": "✗ error", "warning": "⚠ warning"}.get(p.severity, "ℹ caution")
             for col, txt in enumerate((mark, p.path or "study", p.reason)):
                 item = QTableWidgetItem(txt)
                 item.setFlags(Qt.ItemFlag.ItemIsEnabled | Qt.ItemFlag.ItemIsSelectable)
                 self.table.setItem(row, col, item)
-        self.setWindowTitle(f"Notices ({len(problems)})" if problems else "Notices")
+        errors, warnings = self.counts()
+        self.setWindowTitle(f"Notices ({errors + warnings})" if errors + warnings else "Notices")
 
     def counts(self) -> tuple[int, int]:
+        """(errors, warnings); notes and cautions are not counted."""
         errors = sum(p.severity == "error" for p in self.problems)
-        return errors, len(self.problems) - errors
+        return errors, sum(p.severity == "warning" for p in self.problems)

@@ -33,7 +33,24 @@ _MAX_RECENT = 8
 
 def page_classes() -> list[type]:
     """Page classes in navigation order (each added when it works; no placeholders)."""
-    return [BandPlanPage]
+    from app.pages.array_sizing import ArraySizingPage
+    from app.pages.candidates import CandidatesPage
+    from app.pages.curves import CurvesPage
+    from app.pages.die_cost import DieCostPage
+    from app.pages.link_ledger import LinkLedgerPage
+    from app.pages.process_cards import ProcessCardsPage
+    from app.pages.scorecard import ScorecardPage
+
+    return [
+        BandPlanPage,
+        LinkLedgerPage,
+        ProcessCardsPage,
+        CandidatesPage,
+        ScorecardPage,
+        CurvesPage,
+        ArraySizingPage,
+        DieCostPage,
+    ]
 
 
 class MainWindow(QMainWindow):

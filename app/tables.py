@@ -4,27 +4,51 @@ Columns are declared as :class:`FieldColumn` (a field path inside each item); ty
 ranges come from the core field specs, so the table shows units in its headers and refuses a bad
 value with the core's own message. A refused value is shown beside the cell (icon, tint and
 tooltip) and reported to the controller, which lists it in Notices; the study is unchanged.
+
+Cells that offer a fixed set of values (enum fields, or names picked from the study such as a
+candidate's process card) publish them under :data:`OPTIONS_ROLE`, and :class:`FieldDelegate`
+edits them with a combo box; bool fields are check boxes. A column may declare that it does not
+apply to some rows (``applies``): those cells show "—", greyed, but keep and still edit the
+stored value.
 """
 
 from __future__ import annotations
 
 import dataclasses
 import math
-from collections.abc import Callable
+from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass
 from typing import Any
 
-from PySide6.QtCore import QAbstractTableModel, QModelIndex, QPersistentModelIndex, Qt
+from PySide6.QtCore import (
+    QAbstractItemModel,
+    QAbstractTableModel,
+    QModelIndex,
+    QPersistentModelIndex,
+    Qt,
+)
 from PySide6.QtGui import QColor
-from PySide6.QtWidgets import QApplication, QStyle
+from PySide6.QtWidgets import (
+    QApplication,
+    QComboBox,
+    QStyle,
+    QStyledItemDelegate,
+    QStyleOptionViewItem,
+    QWidget,
+)
 
 from app.controller import StudyController
 from core.edits import get_in
-from core.study.schema import FieldSpec
+from core.schema import FieldSpec
 
-__all__ = ["CollectionTableModel", "FieldColumn", "parse_cell"]
+__all__ = ["OPTIONS_ROLE", "CollectionTableModel", "FieldColumn", "FieldDelegate", "parse_cell"]
 
 Index = QModelIndex | QPersistentModelIndex
+
+#: Item-data role: the values a cell may take, as a list of ``(shown text, value text)``.
+OPTIONS_ROLE = int(Qt.ItemDataRole.UserRole) + 1
+#: Text colour of a cell whose column does not apply to its row.
+_NOT_APPLICABLE_FG = "#8c8c8c"
 
 
 @dataclass(frozen=True)
@@ -37,10 +61,22 @@ class FieldColumn:
     compute: Callable[[Any], Any] | None = None
     fmt: str = "{:g}"
     tooltip: str = ""
+    #: item → whether the column means anything for it; False shows "—", greyed (still stored).
+    applies: Callable[[Any], bool] | None = None
+    #: study → the allowed values of a text field (offered in a combo box).
+    options: Callable[[Any], Sequence[str]] | None = None
+    #: shown text for a value text ("die_per_band" → "one die per band"); display only.
+    labels: Mapping[str, str] | None = None
+    #: tooltip of a cell whose column does not apply to its row.
+    na_tooltip: str = ""
 
     @property
     def editable(self) -> bool:
         return self.compute is None
+
+    def shown(self, text: str) -> str:
+        """``text`` (a cell's value text) as the column displays it."""
+        return self.labels.get(text, text) if self.labels else text
 
 
 def _spec_of(item_cls: type, path: tuple[str, ...]) -> FieldSpec:
@@ -169,7 +205,33 @@ class CollectionTableModel(QAbstractTableModel):
         col = self.columns[column]
         return col.compute(item) if col.compute else get_in(item, col.path)
 
+    def applies(self, row: int, column: int) -> bool:
+        """Whether column ``column`` means anything for item ``row`` (see FieldColumn.applies)."""
+        test = self.columns[column].applies
+        return test is None or bool(test(self._items[row]))
+
+    def _is_bool(self, column: int) -> bool:
+        spec = self._specs[column]
+        return spec is not None and spec.kind == "bool"
+
+    def options(self, row: int, column: int) -> list[tuple[str, str]] | None:
+        """``(shown text, value text)`` pairs a cell may take, or None for free entry."""
+        col, spec = self.columns[column], self._specs[column]
+        if spec is None:
+            return None
+        if col.options is not None:
+            return [(col.shown(v), v) for v in col.options(self._c.study)]
+        if spec.kind == "enum":
+            return [(col.shown(m.value), m.value) for m in spec.cls]  # type: ignore[union-attr]
+        return None
+
     def display_text(self, row: int, column: int) -> str:
+        if not self.applies(row, column):
+            return "—"
+        return self.columns[column].shown(self.value_text(row, column))
+
+    def value_text(self, row: int, column: int) -> str:
+        """The stored value as text (what an editor starts from), whether it applies or not."""
         value = self._value(row, column)
         if value is None:
             return "auto" if self._specs[column] and self._specs[column].kind == "int" else "—"
@@ -186,10 +248,23 @@ class CollectionTableModel(QAbstractTableModel):
             return None
         r, c = index.row(), index.column()
         err = self.cell_errors.get((r, c))
-        if role in (Qt.ItemDataRole.DisplayRole, Qt.ItemDataRole.EditRole):
+        if role == Qt.ItemDataRole.DisplayRole:
             return self.display_text(r, c)
+        if role == Qt.ItemDataRole.EditRole:
+            return self.value_text(r, c)
+        if role == OPTIONS_ROLE:
+            return self.options(r, c)
+        if role == Qt.ItemDataRole.CheckStateRole and self._is_bool(c):
+            on = bool(self._value(r, c))
+            return Qt.CheckState.Checked if on else Qt.CheckState.Unchecked
         if role == Qt.ItemDataRole.ToolTipRole:
+            if err is None and not self.applies(r, c):
+                col = self.columns[c]
+                kept = col.shown(self.value_text(r, c))
+                return f"{col.na_tooltip or 'Does not apply to this row.'} Stored value: {kept}."
             return err
+        if role == Qt.ItemDataRole.ForegroundRole and not self.applies(r, c):
+            return QColor(_NOT_APPLICABLE_FG)
         if role == Qt.ItemDataRole.DecorationRole and err:
             style = QApplication.style()
             return style.standardIcon(QStyle.StandardPixmap.SP_MessageBoxWarning)
@@ -199,6 +274,8 @@ class CollectionTableModel(QAbstractTableModel):
             if not self.columns[c].editable:
                 return QColor("#f4f4f4")
         if role == Qt.ItemDataRole.TextAlignmentRole:
+            if not self.applies(r, c):
+                return int(Qt.AlignmentFlag.AlignCenter)
             value = self._value(r, c)
             if isinstance(value, float | int) and not isinstance(value, bool):
                 return int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
@@ -208,16 +285,23 @@ class CollectionTableModel(QAbstractTableModel):
         if not index.isValid():
             return Qt.ItemFlag.NoItemFlags
         base = Qt.ItemFlag.ItemIsEnabled | Qt.ItemFlag.ItemIsSelectable
-        if self.columns[index.column()].editable:
+        if self._is_bool(index.column()):
+            base |= Qt.ItemFlag.ItemIsUserCheckable
+        elif self.columns[index.column()].editable:
             base |= Qt.ItemFlag.ItemIsEditable
         return base
 
     def setData(self, index: Index, value: Any, role: int = Qt.ItemDataRole.EditRole) -> bool:
-        if role != Qt.ItemDataRole.EditRole or not index.isValid():
+        if not index.isValid():
             return False
         r, c = index.row(), index.column()
         col, spec = self.columns[c], self._specs[c]
         if spec is None:
+            return False
+        if role == Qt.ItemDataRole.CheckStateRole and spec.kind == "bool":
+            state = value.value if isinstance(value, Qt.CheckState) else value
+            value = state == Qt.CheckState.Checked.value
+        elif role != Qt.ItemDataRole.EditRole:
             return False
         path = (self.collection, r, *col.path)
         from core.edits import format_path
@@ -239,3 +323,37 @@ class CollectionTableModel(QAbstractTableModel):
         idx = self.index(r, c)
         self.dataChanged.emit(idx, idx)
         return False
+
+
+class FieldDelegate(QStyledItemDelegate):
+    """Edits cells that publish :data:`OPTIONS_ROLE` with a combo box; others as usual.
+
+    The combo commits as soon as a value is picked, so one pick is one undo step.
+    """
+
+    def createEditor(self, parent: QWidget, option: QStyleOptionViewItem, index: Index) -> QWidget:
+        choices = index.data(OPTIONS_ROLE)
+        if choices is None:
+            return super().createEditor(parent, option, index)
+        combo = QComboBox(parent)
+        for shown, value in choices:
+            combo.addItem(shown, value)
+        combo.activated.connect(lambda _i, e=combo: self._on_combo_activated(e))
+        return combo
+
+    def _on_combo_activated(self, editor: QComboBox) -> None:
+        self.commitData.emit(editor)
+        self.closeEditor.emit(editor, QStyledItemDelegate.EndEditHint.NoHint)
+
+    def setEditorData(self, editor: QWidget, index: Index) -> None:
+        if isinstance(editor, QComboBox):
+            editor.setCurrentIndex(editor.findData(index.data(Qt.ItemDataRole.EditRole)))
+            return
+        super().setEditorData(editor, index)
+
+    def setModelData(self, editor: QWidget, model: QAbstractItemModel, index: Index) -> None:
+        if isinstance(editor, QComboBox):
+            if editor.currentIndex() >= 0:
+                model.setData(index, editor.currentData(), Qt.ItemDataRole.EditRole)
+            return
+        super().setModelData(editor, model, index)

@@ -4,12 +4,11 @@ from __future__ import annotations
 
 import json
 from pathlib import Path
-from typing import Literal
+from typing import Any, Literal
 
-from core.schema import encode
 from core.study import Study, check_study
 
-__all__ = ["evaluate_command", "study_summary_text"]
+__all__ = ["evaluate_command", "scorecard_text", "study_summary_text"]
 
 
 def study_summary_text(study: Study) -> str:
@@ -35,6 +34,48 @@ def study_summary_text(study: Study) -> str:
     return "\n".join(lines) + "\n"
 
 
+_SYMBOL = {"meets": "✓", "marginal": "~", "misses": "✗", "infeasible": "!"}
+_METRIC = {"gain": ("Gain", "dB"), "p1db": ("P1dB", "dBm"), "pae": ("PAE", "%")}
+
+
+def scorecard_text(study: Study, evaluation: Any) -> str:
+    """The scorecard as aligned text: one block per candidate, one line per band × metric."""
+    sc = evaluation.scorecard
+    lines = [f"Scorecard: {study.name}", ""]
+    tol = study.tolerance
+    lines.append(
+        f"Status: ✓ meets, ~ marginal (within {tol.marginal_db:g} dB / {tol.marginal_pae_pts:g} "
+        "PAE points), ✗ misses, ! not reachable. Estimates are worst case over each band."
+    )
+    summary = evaluation.summary.set_index("candidate") if len(evaluation.summary) else None
+    for cand in dict.fromkeys(sc["candidate"]):
+        rows = sc[sc["candidate"] == cand]
+        lines += ["", cand]
+        if summary is not None and cand in summary.index:
+            s = summary.loc[cand]
+            lines.append(
+                f"  {s['kind']} on {s['process']}; die area {s['die_area_mm2']:.2f} mm², "
+                f"DC power {s['dc_power_w']:.2f} W per PA, array {s['array_dc_power_w']:.1f} W"
+            )
+        for _, r in rows.iterrows():
+            name, unit = _METRIC.get(r["metric"], (r["metric"], r["unit"]))
+            if r["status"] == "infeasible":
+                lines.append(
+                    f"  {r['band']:<8} {name:<5} {'':>9} target {r['target']:7.2f} {unit:<3} !"
+                )
+                continue
+            lines.append(
+                f"  {r['band']:<8} {name:<5} {r['estimate']:9.2f} {unit:<3} target "
+                f"{r['target']:7.2f}  margin {r['margin']:+6.2f}  {_SYMBOL.get(r['status'], '?')}"
+            )
+    if evaluation.findings:
+        lines += ["", "Findings:"]
+        for f in evaluation.findings:
+            where = f.candidate + (f" / {f.band}" if f.band else "")
+            lines.append(f"  [{f.severity}] {where}: {f.message}")
+    return "\n".join(lines) + "\n"
+
+
 def evaluate_command(
     study: Study,
     source: Path,
@@ -44,6 +85,43 @@ def evaluate_command(
     xlsx: str | None = None,
 ) -> str:
     """What ``bandwright evaluate`` prints (and writes, for ``csv``/``xlsx``)."""
+    from core.estimate import evaluate
+
+    evaluation = evaluate(study)
+    if csv:
+        from core.export import write_curves_csv, write_scorecard_csv
+
+        out = Path(csv)
+        write_scorecard_csv(evaluation, out)
+        write_curves_csv(evaluation, out.with_name(out.stem + "-curves" + out.suffix))
+    if xlsx:
+        from core.costing import cost_study
+        from core.export import write_workbook
+        from core.link_plan import study_ledgers
+
+        write_workbook(
+            study,
+            evaluation,
+            Path(xlsx),
+            study_path=source,
+            cost=cost_study(study, evaluation),
+            ledgers=study_ledgers(study),
+        )
     if fmt == "json":
-        return json.dumps({"source": str(source), "study": encode(study)}, indent=2) + "\n"
-    return study_summary_text(study)
+        doc = {
+            "source": str(source),
+            "study": study.name,
+            "scorecard": json.loads(evaluation.scorecard.to_json(orient="records")),
+            "summary": json.loads(evaluation.summary.to_json(orient="records")),
+            "findings": [
+                {
+                    "candidate": f.candidate,
+                    "band": f.band,
+                    "severity": f.severity,
+                    "message": f.message,
+                }
+                for f in evaluation.findings
+            ],
+        }
+        return json.dumps(doc, indent=2, ensure_ascii=False) + "\n"
+    return study_summary_text(study) + "\n" + scorecard_text(study, evaluation)

@@ -43,7 +43,7 @@ class Problem:
 
     path: str
     reason: str
-    severity: Literal["error", "warning"] = "error"
+    severity: Literal["error", "warning", "note"] = "error"
 
     def __str__(self) -> str:
         return f"{self.path}: {self.reason}" if self.path else self.reason

@@ -31,7 +31,8 @@ def make_window(qtbot, settings_isolated):
         if study is None:
             study = load_study(path or demo_path())
         w = MainWindow(study, path, ask_recover=False)
-        qtbot.addWidget(w)
+        # Not qtbot.addWidget: pytest-qt would close the window before this fixture marks the
+        # study clean, and the unsaved-changes prompt would then block the run.
         w.show()
         made.append(w)
         return w
@@ -40,3 +41,4 @@ def make_window(qtbot, settings_isolated):
     for w in made:
         w.controller.undo_stack.setClean()  # no prompt while tearing down
         w.close()
+        w.deleteLater()
