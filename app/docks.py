@@ -28,7 +28,14 @@ _EMPTY_DERIVATION = (
 
 
 def _fmt(value: Any) -> str:
+    """Six significant figures; no "-0"; thousands separated rather than exponent for money."""
     if isinstance(value, float):
+        if value != value:
+            return "—"
+        if abs(value) < 5e-13:
+            return "0"
+        if 1e5 <= abs(value) < 1e12:
+            return f"{value:,.0f}"
         return f"{value:.6g}"
     return html.escape(str(value))
 

@@ -131,7 +131,12 @@ class MainWindow(QMainWindow):
         self.act_revert = self._action(m, "Re&vert to Saved", self.file_revert)
         self.file_menu = m
         m.addSeparator()
-        self.export_anchor = m.addSeparator()
+        self.act_export_xlsx = self._action(
+            m, "&Export Comparison Workbook…", self.export_workbook, QKeySequence("Ctrl+E")
+        )
+        self._action(m, "Export Scorecard as &CSV…", self.export_scorecard_csv)
+        self._action(m, "Export Curves as CS&V…", self.export_curves_csv)
+        m.addSeparator()
         self._action(m, "&Quit", self.close, QKeySequence.StandardKey.Quit)
 
         e = self.menuBar().addMenu("&Edit")
@@ -142,6 +147,10 @@ class MainWindow(QMainWindow):
         e.addAction(undo)
         e.addAction(redo)
         self.act_undo, self.act_redo = undo, redo
+        e.addSeparator()
+        self.act_copy_scorecard = self._action(
+            e, "&Copy Scorecard as Text", self.copy_scorecard, QKeySequence("Ctrl+Shift+C")
+        )
 
         v = self.menuBar().addMenu("&View")
         v.addAction(self.derivation.toggleViewAction())
@@ -289,6 +298,83 @@ class MainWindow(QMainWindow):
             return
         autosave.discard(path)
         self.controller.reset(study, path)
+
+    # -- exports -------------------------------------------------------------------------
+    def _export_target(self, title: str, suffix: str, filter_: str, stem: str) -> Path | None:
+        base = self.controller.path.with_suffix("") if self.controller.path else Path(stem)
+        name, _ = QFileDialog.getSaveFileName(self, title, f"{base}{suffix}", filter_)
+        if not name:
+            return None
+        path = Path(name)
+        return path if path.suffix.lower() == suffix else path.with_name(path.name + suffix)
+
+    def _export(self, what: str, path: Path, write) -> bool:
+        self.controller.flush()
+        try:
+            write(path)
+        except OSError as exc:
+            reason = exc.strerror or str(exc)
+            QMessageBox.critical(
+                self, "Export failed",
+                f"Could not write {path}:\n{reason}\n\nAny existing file there is unchanged.",
+            )  # fmt: skip
+            self.statusBar().showMessage(f"Export failed — {path.name}: {reason}", 10000)
+            return False
+        self.statusBar().showMessage(f"Exported {what} to {path}", 8000)
+        return True
+
+    def export_workbook(self) -> bool:
+        path = self._export_target(
+            "Export comparison workbook", ".xlsx", "Excel workbook (*.xlsx)",
+            self.controller.study.name + " comparison",
+        )  # fmt: skip
+        if path is None:
+            return False
+        from core.report import write_comparison_workbook
+
+        c = self.controller
+        return self._export(
+            "comparison workbook", path,
+            lambda p: write_comparison_workbook(
+                c.study, p, study_path=c.path, evaluation=c.evaluation, cost=c.cost,
+                scores=c.scores,
+            ),
+        )  # fmt: skip
+
+    def export_scorecard_csv(self) -> bool:
+        path = self._export_target(
+            "Export scorecard", ".csv", "CSV (*.csv)", self.controller.study.name + " scorecard"
+        )
+        if path is None:
+            return False
+        from core.export import write_scorecard_csv
+
+        return self._export(
+            "scorecard", path, lambda p: write_scorecard_csv(self.controller.evaluation, p)
+        )
+
+    def export_curves_csv(self) -> bool:
+        path = self._export_target(
+            "Export curves", ".csv", "CSV (*.csv)", self.controller.study.name + " curves"
+        )
+        if path is None:
+            return False
+        from core.export import write_curves_csv
+
+        return self._export(
+            "curves", path, lambda p: write_curves_csv(self.controller.evaluation, p)
+        )
+
+    def copy_scorecard(self) -> None:
+        from PySide6.QtWidgets import QApplication
+
+        from core.export import scorecard_tsv
+
+        self.controller.flush()
+        QApplication.clipboard().setText(scorecard_tsv(self.controller.evaluation))
+        self.statusBar().showMessage(
+            "Scorecard copied as tab-separated text (pastes into spreadsheets and slides)", 6000
+        )
 
     # -- recent files --------------------------------------------------------------------
     def recent_files(self) -> list[str]:

@@ -8,7 +8,12 @@ from typing import Any, Literal
 
 from core.study import Study, check_study
 
-__all__ = ["evaluate_command", "scorecard_text", "study_summary_text"]
+__all__ = [
+    "evaluate_command",
+    "scorecard_text",
+    "study_summary_text",
+    "write_comparison_workbook",
+]
 
 
 def study_summary_text(study: Study) -> str:
@@ -76,6 +81,44 @@ def scorecard_text(study: Study, evaluation: Any) -> str:
     return "\n".join(lines) + "\n"
 
 
+def write_comparison_workbook(
+    study: Study,
+    path: Path,
+    *,
+    study_path: Path | None = None,
+    evaluation: Any = None,
+    cost: Any = None,
+    scores: Any = None,
+) -> None:
+    """Write the comparison workbook; the GUI and ``bandwright evaluate --xlsx`` both call this.
+
+    Parts already computed (the GUI keeps them) are reused; missing ones are computed here
+    from ``study``, so both routes produce the same workbook.
+
+    Raises
+    ------
+    OSError
+        If the file cannot be written; an existing file is left intact.
+    """
+    from core.costing import cost_study, weighted_scores
+    from core.estimate import evaluate
+    from core.export import write_workbook
+    from core.link_plan import study_ledgers
+
+    evaluation = evaluate(study) if evaluation is None else evaluation
+    cost = cost_study(study, evaluation) if cost is None else cost
+    scores = weighted_scores(study, evaluation, cost) if scores is None else scores
+    write_workbook(
+        study,
+        evaluation,
+        path,
+        study_path=study_path,
+        cost=cost,
+        ledgers=study_ledgers(study),
+        scores=scores,
+    )
+
+
 def evaluate_command(
     study: Study,
     source: Path,
@@ -95,18 +138,7 @@ def evaluate_command(
         write_scorecard_csv(evaluation, out)
         write_curves_csv(evaluation, out.with_name(out.stem + "-curves" + out.suffix))
     if xlsx:
-        from core.costing import cost_study
-        from core.export import write_workbook
-        from core.link_plan import study_ledgers
-
-        write_workbook(
-            study,
-            evaluation,
-            Path(xlsx),
-            study_path=source,
-            cost=cost_study(study, evaluation),
-            ledgers=study_ledgers(study),
-        )
+        write_comparison_workbook(study, Path(xlsx), study_path=source, evaluation=evaluation)
     if fmt == "json":
         doc = {
             "source": str(source),

@@ -2,13 +2,16 @@
 
 from __future__ import annotations
 
-from PySide6.QtCore import Qt
+from PySide6.QtCore import QEvent, Qt
 from PySide6.QtWidgets import (
     QAbstractItemView,
+    QFormLayout,
     QHBoxLayout,
     QHeaderView,
     QLabel,
+    QLineEdit,
     QMenu,
+    QPlainTextEdit,
     QPushButton,
     QTableView,
     QVBoxLayout,
@@ -120,7 +123,20 @@ class BandPlanPage(QWidget):
         source.setStyleSheet("color:#555")
         buttons.addWidget(source)
 
+        self.name_edit = QLineEdit(controller.study.name)
+        self.name_edit.setObjectName("StudyName")
+        self.name_edit.editingFinished.connect(self._on_name_edit_finished)
+        self.notes_edit = QPlainTextEdit(controller.study.notes)
+        self.notes_edit.setObjectName("StudyNotes")
+        self.notes_edit.setFixedHeight(58)
+        self.notes_edit.setPlaceholderText("Scenario, assumptions, open questions…")
+        self.notes_edit.installEventFilter(self)
+        form = QFormLayout()
+        form.addRow("Study", self.name_edit)
+        form.addRow("Notes", self.notes_edit)
+
         layout = QVBoxLayout(self)
+        layout.addLayout(form)
         layout.addWidget(heading)
         layout.addLayout(buttons)
         layout.addWidget(self.table, 1)
@@ -133,8 +149,31 @@ class BandPlanPage(QWidget):
         if path.startswith("bands"):
             self.message.setText(f"✗ Not applied — {path}: {reason}")
 
-    def _on_controller_study_changed(self, _study: object) -> None:
+    def _on_controller_study_changed(self, study: object) -> None:
         self.message.setText("")
+        if not self.name_edit.hasFocus() and self.name_edit.text() != study.name:
+            self.name_edit.setText(study.name)
+        if not self.notes_edit.hasFocus() and self.notes_edit.toPlainText() != study.notes:
+            self.notes_edit.setPlainText(study.notes)
+
+    def _on_name_edit_finished(self) -> None:
+        text = self.name_edit.text().strip()
+        if not text:
+            self._c.report_refusal("name", "must not be empty")
+            self.name_edit.setText(self._c.study.name)
+            return
+        if text != self._c.study.name and not self._c.set_field(("name",), text, "Rename study"):
+            self.name_edit.setText(self._c.study.name)
+
+    def eventFilter(self, obj: object, event: QEvent) -> bool:
+        # Notes are committed as one undoable edit when the editor loses focus.
+        if obj is self.notes_edit and event.type() == QEvent.Type.FocusOut:
+            text = self.notes_edit.toPlainText()
+            if text != self._c.study.notes and not self._c.set_field(
+                ("notes",), text, "Edit notes"
+            ):
+                self.notes_edit.setPlainText(self._c.study.notes)
+        return super().eventFilter(obj, event)
 
     def add_preset(self, name: str) -> None:
         b = FR2_PRESETS[name]

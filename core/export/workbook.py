@@ -172,7 +172,9 @@ def _frame_sheet(ws: Worksheet, df: pd.DataFrame, start_row: int = 1) -> int:
 
 
 # ------------------------------------------------------------------------------- Summary
-def _summary_sheet(ws: Worksheet, study: Study, ev: Any, cost: Any) -> None:
+def _summary_sheet(
+    ws: Worksheet, study: Study, ev: Any, cost: Any, scores: pd.DataFrame | None = None
+) -> None:
     sc: pd.DataFrame = ev.scorecard
     cands = list(dict.fromkeys(sc["candidate"]))
     present = set(sc["band"])
@@ -210,7 +212,7 @@ def _summary_sheet(ws: Worksheet, study: Study, ev: Any, cost: Any) -> None:
     for r, cand in enumerate(cands, start=4):
         _put(ws, r, 1, cand, font=_BOLD)
 
-    per = _per_candidate(ev, cost)
+    per = _per_candidate(ev, cost, scores)
     if per:
         _put(ws, 1, col, "Per candidate", font=_BOLD).alignment = _CENTRE
         ws.cell(row=1, column=col).fill = _HEAD_FILL
@@ -250,7 +252,9 @@ def _status_rules(ws: Worksheet, cols: list[int], first: int, last: int) -> None
             )
 
 
-def _per_candidate(ev: Any, cost: Any) -> list[tuple[str, str, dict[str, Any]]]:
+def _per_candidate(
+    ev: Any, cost: Any, scores: pd.DataFrame | None = None
+) -> list[tuple[str, str, dict[str, Any]]]:
     """Per-candidate summary columns present in the evaluation and the cost result."""
     out: list[tuple[str, str, dict[str, Any]]] = []
     summary = getattr(ev, "summary", None)
@@ -276,10 +280,13 @@ def _per_candidate(ev: Any, cost: Any) -> list[tuple[str, str, dict[str, Any]]]:
         for name, label, fmt in cols:
             if name in df.columns and "candidate" in df.columns:
                 out.append((label, fmt, dict(zip(df["candidate"], df[name], strict=True))))
-    if isinstance(summary, pd.DataFrame) and "score" in summary.columns:
+    if isinstance(scores, pd.DataFrame) and "score" in scores.columns:
         out.append(
-            ("Score", "0.000", dict(zip(summary["candidate"], summary["score"], strict=True)))
+            ("Score (0–1)", "0.000", dict(zip(scores["candidate"], scores["score"], strict=True)))
         )
+        if "pareto" in scores.columns:
+            marks = ["◆ yes" if bool(p) else "—" for p in scores["pareto"]]
+            out.append(("Pareto set", "@", dict(zip(scores["candidate"], marks, strict=True))))
     return out
 
 
@@ -607,6 +614,7 @@ def build_workbook(
     study_path: str | os.PathLike[str] | None = None,
     cost: Any = None,
     ledgers: Mapping[str, LinkBudget] | None = None,
+    scores: pd.DataFrame | None = None,
 ) -> Workbook:
     """Build the comparison workbook in memory (see :func:`write_workbook`)."""
     wb = Workbook()
@@ -616,7 +624,7 @@ def build_workbook(
         wb.remove(ws.pop("Link Ledger"))
     if cost is None:
         wb.remove(ws.pop("Area & Cost"))
-    _summary_sheet(ws["Summary"], study, evaluation, cost)
+    _summary_sheet(ws["Summary"], study, evaluation, cost, scores)
     _bands_sheet(ws["Bands & Targets"], study)
     if ledgers is not None:
         _ledger_sheet(ws["Link Ledger"], ledgers)
@@ -640,6 +648,7 @@ def write_workbook(
     study_path: str | os.PathLike[str] | None = None,
     cost: Any = None,
     ledgers: Mapping[str, LinkBudget] | None = None,
+    scores: pd.DataFrame | None = None,
 ) -> None:
     """Write the comparison workbook (.xlsx) of an evaluated study, atomically.
 
@@ -656,6 +665,8 @@ def write_workbook(
         Adds the "Area & Cost" sheet (live formulas) and the cost columns of "Summary".
     ledgers : mapping of band name → core.link.LinkBudget, optional
         From :func:`core.link_plan.study_ledgers`; adds the "Link Ledger" sheet.
+    scores : pandas.DataFrame, optional
+        From :func:`core.costing.weighted_scores`; adds "Score" and "Pareto set" to "Summary".
 
     Raises
     ------
@@ -663,5 +674,7 @@ def write_workbook(
         If the file (or ``study_path``) cannot be read or written; an existing file at ``path``
         is then left byte-for-byte intact and no temporary file remains.
     """
-    wb = build_workbook(study, evaluation, study_path=study_path, cost=cost, ledgers=ledgers)
+    wb = build_workbook(
+        study, evaluation, study_path=study_path, cost=cost, ledgers=ledgers, scores=scores
+    )
     atomic_write(path, wb.save)

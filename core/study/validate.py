@@ -46,6 +46,8 @@ def check_study(study: Study) -> list[Problem]:
         elif spec.kind == "str" and isinstance(value, str) and len(value) > spec.max_len:
             problems.append(Problem(path, f"is longer than {spec.max_len} characters"))
 
+    if not study.name.strip():
+        problems.append(Problem("name", "must not be empty"))
     if not study.bands:
         problems.append(Problem("bands", "needs at least one band"))
     for i, b in enumerate(study.bands):
@@ -111,6 +113,10 @@ def check_study(study: Study) -> list[Problem]:
                 f"must be at least design_volume ({study.cost.design_volume})",
             )
         )
+
+    w = study.weights
+    if w.performance + w.unit_cost + w.dc_power + w.area <= 0:
+        problems.append(Problem("weights", "at least one score weight must be above zero"))
 
     valid_bands = [b.band for b in study.bands if b.f_high_ghz > b.f_low_ghz]
     for i, j in overlapping_pairs(valid_bands):

@@ -122,3 +122,18 @@ def test_revert_restores_the_saved_file(make_window, tmp_path, monkeypatch):
     w.file_revert()
     assert w.controller.study.bands[0].name == "n257"
     assert not w.isWindowModified()
+
+
+def test_rename_study_updates_title_and_undoes(make_window):
+    w = make_window()
+    page = w.select_page("Band Plan")
+    page.name_edit.setText("Quay 7 small cell")
+    page.name_edit.editingFinished.emit()
+    assert w.controller.study.name == "Quay 7 small cell"
+    assert "Quay 7 small cell" in w.windowTitle()
+    w.controller.undo_stack.undo()
+    assert page.name_edit.text() == w.controller.study.name != "Quay 7 small cell"
+    page.name_edit.setText("   ")
+    page.name_edit.editingFinished.emit()
+    assert w.controller.study.name.strip()
+    assert any(p.path == "name" for p in w.notices.problems)

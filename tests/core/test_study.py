@@ -154,6 +154,11 @@ def _problems(doc: dict) -> list[str]:
         (lambda d: d["bands"][0].update(colour="red"), "bands[0].colour", "not a known field"),
         (lambda d: d["bands"][0].update(f_low_ghz=float("inf")), "bands[0].f_low_ghz", "finite"),
         (lambda d: d["estimator"].update(freq_points=True), "estimator.freq_points", "whole"),
+        (
+            lambda d: d["weights"].update(performance=0, unit_cost=0, dc_power=0, area=0),
+            "weights",
+            "above zero",
+        ),
     ],
 )
 def test_each_validation_rule_names_the_field(mutate, path, words):
