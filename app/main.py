@@ -5,7 +5,16 @@ from __future__ import annotations
 import sys
 from pathlib import Path
 
-__all__ = ["make_application", "run_gui"]
+__all__ = ["icon_path", "make_application", "run_gui"]
+
+
+def icon_path() -> Path:
+    """The application icon: ``app/assets`` in a wheel, ``<repo>/assets`` in a checkout."""
+    here = Path(__file__).resolve().parent
+    for folder in (here / "assets", here.parent / "assets"):
+        if (folder / "bandwright.svg").is_file():
+            return folder / "bandwright.svg"
+    raise FileNotFoundError("the application icon is missing from this installation")
 
 
 def make_application():
@@ -16,6 +25,9 @@ def make_application():
     app.setOrganizationName("Bandwright")
     app.setApplicationName("Bandwright")
     app.setStyle("Fusion")
+    from PySide6.QtGui import QIcon
+
+    app.setWindowIcon(QIcon(str(icon_path())))
     return app
 
 

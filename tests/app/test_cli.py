@@ -69,3 +69,11 @@ def test_snapshot_writes_one_png_per_page(tmp_path, qapp):
 def test_snapshot_bad_size(size, capsys, tmp_path):
     assert main(["snapshot", "--out", str(tmp_path), "--size", size]) == 2
     assert "--size" in capsys.readouterr().err
+
+
+def test_icon_and_demo_ship_with_the_package():
+    from app.main import icon_path
+    from core.resources import demo_studies
+
+    assert icon_path().read_text().startswith("<svg")
+    assert "harbour-small-cell" in demo_studies()
