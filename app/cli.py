@@ -30,8 +30,13 @@ def _gui_parser() -> argparse.ArgumentParser:
         prog="bandwright",
         description="Link-budget and PA specification trade-off explorer. "
         "Commands: evaluate FILE, snapshot [FILE] --out DIR; with no command, opens the GUI.",
+        epilog="bandwright evaluate FILE [--csv OUT] [--xlsx OUT] [--format text|json]  prints the "
+        "scorecard; bandwright snapshot [FILE] --out DIR [--size WxH]  renders every page to PNG. "
+        "Add --help after a command for its options.",
     )
-    p.add_argument("file", nargs="?", help="study file to open (default: the built-in demo)")
+    p.add_argument(
+        "file", nargs="?", help="study file to open (default: an unsaved copy of the built-in demo)"
+    )
     p.add_argument("--version", action="version", version=f"bandwright {__version__}")
     return p
 

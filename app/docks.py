@@ -32,6 +32,8 @@ def _fmt(value: Any) -> str:
     if isinstance(value, float):
         if value != value:
             return "—"
+        if value in (float("inf"), float("-inf")):
+            return "∞" if value > 0 else "−∞"
         if abs(value) < 5e-13:
             return "0"
         if 1e5 <= abs(value) < 1e12:

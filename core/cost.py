@@ -19,6 +19,7 @@ References
 
 from __future__ import annotations
 
+import functools
 import itertools
 import math
 from collections.abc import Sequence
@@ -276,7 +277,15 @@ def count_whole_dies(
         n_offsets = max(_MIN_OFFSETS, _SWEEP_BUDGET // (2 * math.ceil(r / px) + 3))
     if isinstance(n_offsets, bool) or not isinstance(n_offsets, int | np.integer) or n_offsets < 2:
         raise CostError("n_offsets: must be an integer of at least 2")
+    # The search costs milliseconds per die and a study re-costs the same dies on every edit:
+    # memoise it on the geometry rounded to 1e-9 mm (far below any layout tolerance), which
+    # also makes the result independent of float noise in the inputs.
+    return _searched_grid(round(r, 9), round(px, 9), round(py, 9), int(n_offsets))
 
+
+@functools.lru_cache(maxsize=256)
+def _searched_grid(r: float, px: float, py: float, n_offsets: int) -> DieGrid:
+    """The offset search of :func:`count_whole_dies` (validated inputs; results read-only)."""
     ox = np.linspace(0.0, px / 2.0, n_offsets)
     n_blocks = -(-n_offsets * (2 * math.ceil(r / px) + 3) // _BLOCK_ELEMENTS)
     sweep = [_best_along_y(r, px, py, block) for block in np.array_split(ox, n_blocks)]

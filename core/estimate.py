@@ -46,9 +46,17 @@ from core.pa_layout import layout
 from core.pa_model import BF_GAMMA_LIMIT, bode_fano_headroom_db
 from core.study.model import CandidateKind, Study
 from core.study.validate import check_study
-from core.sweep import sweep_table
+from core.sweep import REASON_TEXT, sweep_arrays, sweep_table
 
-__all__ = ["Derivation", "Evaluation", "Finding", "Status", "evaluate", "sweep_p1db"]
+__all__ = [
+    "Derivation",
+    "Evaluation",
+    "Finding",
+    "Status",
+    "evaluate",
+    "sweep_p1db",
+    "sweep_p1db_per_band",
+]
 
 _METRICS = ("gain", "p1db", "pae")
 _UNITS = ("dB", "dBm", "%")
@@ -406,3 +414,69 @@ def sweep_p1db(study: Study, p1db_dbm: NDArray[np.float64]) -> pd.DataFrame:
     if not any(c.enabled for c in study.candidates):
         return pd.DataFrame({c: pd.Series(dtype=object) for c in cols})
     return sweep_table(study, build_plan(study), x)[cols]
+
+
+def sweep_p1db_per_band(study: Study, p1db_dbm: NDArray[np.float64]) -> dict[str, NDArray]:
+    """:func:`sweep_p1db` with its own targets for each band, as arrays (array sizing).
+
+    One solve covers every band: the row of band b is sized for ``p1db_dbm[b]``, with the
+    same rules and results as :func:`sweep_p1db` at those targets.
+
+    Parameters
+    ----------
+    study : Study
+        A valid study.
+    p1db_dbm : array_like, (B, T)
+        P1dB targets at the RF port (dBm) of each of the study's B bands, finite.
+
+    Returns
+    -------
+    dict of ndarray
+        ``candidate`` and ``band`` (R,) names of the enabled candidate × band rows
+        (candidate-major); ``p1db_target_dbm``, ``feasible``, ``dc_power_w``,
+        ``die_area_mm2`` and ``reason`` (R, T), as the columns of :func:`sweep_p1db`.
+
+    Raises
+    ------
+    ValueError
+        On an invalid study or targets that are not finite or not (B, T).
+
+    Examples
+    --------
+    >>> from core.study import Study
+    >>> out = sweep_p1db_per_band(Study.new(), np.array([[20.0, 25.0]]))
+    >>> out["feasible"].tolist()
+    [[True, True]]
+    """
+    x = np.asarray(p1db_dbm, dtype=float)
+    if x.ndim != 2 or x.shape[0] != len(study.bands) or x.shape[1] == 0:
+        raise ValueError(
+            f"p1db_dbm: must be a (bands, targets) array with {len(study.bands)} rows, "
+            f"got shape {x.shape}"
+        )
+    if not np.isfinite(x).all():
+        raise ValueError("p1db_dbm: must be finite")
+    _validated(study)
+    if not any(c.enabled for c in study.candidates):
+        empty = np.empty(0, dtype=object)
+        e2 = np.empty((0, x.shape[1]))
+        return {
+            "candidate": empty,
+            "band": empty,
+            "p1db_target_dbm": e2,
+            "feasible": e2.astype(bool),
+            "dc_power_w": e2,
+            "die_area_mm2": e2,
+            "reason": e2.astype(object),
+        }
+    plan = build_plan(study)
+    arr = sweep_arrays(study, plan, x)
+    return {
+        "candidate": np.array([c.name for c in plan.candidates], dtype=object)[plan.row_cand],
+        "band": np.array([b.name for b in plan.bands], dtype=object)[plan.row_band],
+        "p1db_target_dbm": arr["target"],
+        "feasible": arr["code"] == 0,
+        "dc_power_w": arr["dc_power_w"],
+        "die_area_mm2": arr["die_area_mm2"],
+        "reason": np.array(REASON_TEXT, dtype=object)[arr["code"]],
+    }

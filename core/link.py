@@ -620,7 +620,10 @@ def link_budget(
         ("Path", "Gaseous absorption", path.gas_db, "dB", "ITU-R P.676-11 Annex 2 §2.1", "γ·d"),
         ("Path", "Rain specific attenuation", path.rain_db_per_km, "dB/km",
          "ITU-R P.838-3 eqs (1)-(5)", f"k·R^α, R = {x.rain_rate_mm_h:g} mm/h, τ = {tau:g}°"),
-        ("Path", "Rain distance factor r", path.rain_factor, "", "ITU-R P.530-17 §2.4.1 eq (32)",
+        ("Path", "Rain distance factor r", path.rain_factor, "",
+         "ITU-R P.530-17 §2.4.1 eq (32)" + (
+             "; capped at 2.5 on this short path (a fixed-link method: conservative below ~1 km)"
+             if path.rain_factor >= 2.5 - 1e-12 else ""),
          "1/(0.477·d^0.633·R^(0.073α)·f^0.123 − 10.579·(1 − e^(−0.024·d))), r ≤ 2.5"),
         ("Path", "Rain attenuation", path.rain_db, "dB", "ITU-R P.530-17 eq (33)", "γR·d·r"),
         *(("Path", f"Extra: {name}", v, "dB", user, "extra loss") for name, v in x.extra_losses_db),

@@ -280,20 +280,20 @@ def _n_values(n_values: ArrayLike) -> np.ndarray:
     return n.astype(np.int64)
 
 
-def _sweep_p1db(study: Study, p1db_dbm: np.ndarray) -> pd.DataFrame:
+def _sweep_p1db_per_band(study: Study, p1db_dbm: np.ndarray) -> dict[str, np.ndarray]:
     # Imported here because the estimator imports the study model, not this module; keeping
     # the import local avoids loading the estimator for ledger-only use.
-    from core.estimate import sweep_p1db
+    from core.estimate import sweep_p1db_per_band
 
-    return sweep_p1db(study, p1db_dbm)
+    return sweep_p1db_per_band(study, p1db_dbm)
 
 
 def array_plan(study: Study, n_values: ArrayLike | None = None) -> pd.DataFrame:
     """Sweep the array size N per band: per-element P1dB needed, PA count and array DC power.
 
     For each band the required EIRP is fixed by its link at the worst-case frequency; the
-    per-element P1dB it needs falls 20·log10 2 = 6.02 dB per doubling of N. All the P1dB
-    targets of one band go to the estimator in one ``sweep_p1db`` call.
+    per-element P1dB it needs falls 20·log10 2 = 6.02 dB per doubling of N. The P1dB targets
+    of every band go to the estimator in one ``sweep_p1db_per_band`` call.
 
     Parameters
     ----------
@@ -323,24 +323,25 @@ def array_plan(study: Study, n_values: ArrayLike | None = None) -> pd.DataFrame:
     DESIGN.md §3 step 6; array theory as in :func:`core.link.array_eirp_dbm`.
     """
     n = _n_values(np.arange(1, 1025) if n_values is None else n_values)
-    frames = []
+    if not study.bands:
+        return pd.DataFrame({c: [] for c in PLAN_COLUMNS})
+    needs = []
     for band in study.bands:
         x = link_inputs(band)
         sweep = array_sweep(_worst_case_hz(band, x), x, n)
-        need = sweep["p1db_elem_dbm"].to_numpy(dtype=np.float64)
-        est = _sweep_p1db(study, need)
-        est = est[est["band"] == band.name]
-        for candidate, rows in est.groupby("candidate", sort=False):
-            rows = rows.sort_values("p1db_target_dbm")
-            # Map every needed P1dB back to its row (targets are unique: strictly falling in N).
-            order = np.searchsorted(rows["p1db_target_dbm"].to_numpy(), need)
-            order = np.clip(order, 0, len(rows) - 1)
-            picked = rows.iloc[order]
-            if not np.allclose(picked["p1db_target_dbm"].to_numpy(), need, atol=1e-9):
+        needs.append(sweep["p1db_elem_dbm"].to_numpy(dtype=np.float64))
+    need_all = np.stack(needs)
+    est = _sweep_p1db_per_band(study, need_all)
+    frames = []
+    for b_i, band in enumerate(study.bands):
+        need = need_all[b_i]
+        for r in np.flatnonzero(est["band"] == band.name):
+            candidate = str(est["candidate"][r])
+            if not np.array_equal(est["p1db_target_dbm"][r], need):
                 raise ValueError(f"sweep_p1db: rows for {candidate!r} do not match the targets")
-            feasible = picked["feasible"].to_numpy(dtype=bool)
-            dc = picked["dc_power_w"].to_numpy(dtype=np.float64)
-            per_pa = _pa_recurring_usd(study, candidate, picked["die_area_mm2"].to_numpy(float))
+            feasible = est["feasible"][r]
+            dc = est["dc_power_w"][r]
+            per_pa = _pa_recurring_usd(study, candidate, est["die_area_mm2"][r])
             frames.append(
                 pd.DataFrame(
                     {
@@ -349,7 +350,7 @@ def array_plan(study: Study, n_values: ArrayLike | None = None) -> pd.DataFrame:
                         "n_elements": n,
                         "p1db_elem_dbm": need,
                         "feasible": feasible,
-                        "reason": picked["reason"].fillna("").astype(str).to_numpy(),
+                        "reason": est["reason"][r].astype(str),
                         "pa_count": n,
                         "array_dc_power_w": np.where(feasible, n * dc, np.nan),
                         "array_pa_cost_usd": np.where(feasible, n * per_pa, np.nan),

@@ -53,7 +53,7 @@ from core import rf
 from core.pa_model import LOAD_OHM, DesignBatch, Solution, chebyshev_scale
 from core.pa_points import ChosenPoints, point_coordinates, prune
 
-__all__ = ["convexity_holds", "prune_points", "solve"]
+__all__ = ["convex_at_start", "convexity_holds", "prune_points", "solve"]
 
 #: Iteration cap of the periphery search (it needs 3–8 passes; the cap is a safety net).
 _MAX_PASSES = 40
@@ -158,8 +158,18 @@ def _interstage(b: DesignBatch, c: dict[str, F64]) -> tuple[F64, INT]:
     return worst[np.arange(b.n_rows), n_is[b.group]], (n_is + 1).astype(np.int64)
 
 
-def prune_points(b: DesignBatch) -> tuple[DesignBatch, NDArray[np.bool_]]:
+def prune_points(
+    b: DesignBatch, a_max: float | None = None
+) -> tuple[DesignBatch, NDArray[np.bool_]]:
     """The batch on the worst-case points only (:func:`core.pa_points.prune`).
+
+    Parameters
+    ----------
+    b : DesignBatch
+        A batch on the uniform grid.
+    a_max : float, optional
+        Passed to :func:`core.pa_points.prune`: ``np.inf`` gives a pruning that is exact for
+        every request (no convexity check needed), None the smallest point sets.
 
     Returns
     -------
@@ -168,7 +178,7 @@ def prune_points(b: DesignBatch) -> tuple[DesignBatch, NDArray[np.bool_]]:
         Rows whose pruning assumed a convex mismatch term; check with :func:`convexity_holds`.
     """
     c = _constants(b)
-    pts, convex_rows = prune(b.points, c["l_p"], c["l_sw"], c["h"])
+    pts, convex_rows = prune(b.points, c["l_p"], c["l_sw"], c["h"], a_max)
     is_db, is_sec = _interstage(b, c)
     pruned = b.with_points(pts)
     pruned = DesignBatch(
@@ -202,12 +212,26 @@ def convexity_holds(b: DesignBatch, sol: Solution, rows: NDArray[np.bool_]) -> N
     and the ripple |Γ|m(r) is quasi-convex in log r, so checking every section count at those
     two covers every pass: |Γ|m ≤ 1/√2 ⇔ a·h_max ≤ 1.
     """
-    ok = np.ones(sol.w_out_mm.shape[0], dtype=bool)
+    return _convex_at(b, (sol.w_first_mm, sol.w_peak_mm), rows)
+
+
+def convex_at_start(b: DesignBatch, p_req_w: F64, rows: NDArray[np.bool_]) -> NDArray[np.bool_]:
+    """Whether the convexity of :func:`convexity_holds` holds at the first periphery, (K,).
+
+    A sample for which this is False fails :func:`convexity_holds` whatever its later passes,
+    so a caller can send it to an exact pruning at once.
+    """
+    c = _constants(b)
+    return _convex_at(b, (initial_periphery(b, p_req_w, c),), rows)
+
+
+def _convex_at(b: DesignBatch, ws: tuple[F64, ...], rows: NDArray[np.bool_]) -> NDArray[np.bool_]:
+    ok = np.ones(ws[0].shape[0], dtype=bool)
     if not rows.any():
         return ok
     n_sec = np.arange(1, b.max_sections + 1, dtype=float)[None, None, :]
     cap = (b.max_cells * b.cell_max_mm)[b.starts][None, :]
-    for w in (np.minimum(sol.w_first_mm, cap), np.minimum(sol.w_peak_mm, cap)):
+    for w in (np.minimum(w, cap) for w in ws):
         ratio = LOAD_OHM * w[:, b.group][:, rows] / b.ropt_ohm_mm[rows][None, :]
         gm = rf.chebyshev_max_reflection(ratio[..., None], n_sec, b.bw_frac[rows][None, :, None])
         ok &= (np.asarray(gm) <= 2.0**-0.5).all(axis=(1, 2))

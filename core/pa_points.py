@@ -171,7 +171,9 @@ def _upper_hull(x: F64, y: F64) -> NDArray[np.bool_]:
     return keep
 
 
-def prune(pts: Points, lp: F64, lsw: F64, h: F64) -> tuple[Points, NDArray[np.bool_]]:
+def prune(
+    pts: Points, lp: F64, lsw: F64, h: F64, a_max: float | None = None
+) -> tuple[Points, NDArray[np.bool_]]:
     """Keep only the points that can be the worst case of any sizing request.
 
     Every worst-in-band quantity of the solver (P1dB loss, gain loss, driver headroom) is a
@@ -189,9 +191,18 @@ def prune(pts: Points, lp: F64, lsw: F64, h: F64) -> tuple[Points, NDArray[np.bo
        of largest L_sw, and h_i ≤ min(h_j, h_k): g(x_i) ≤ max(g(x_j), g(x_k)) by monotonicity
        and convexity — always exact (for a state tuned to its own band, j and k are the two
        band edges, where |T_N| = 1);
-    3. on a row without switch loss (L_sw ≡ 0), (L_p, h) of i lies inside the upper-right hull
-       of the other points — exact while ψ is convex, which the caller verifies per request
-       with :func:`core.pa_design.convexity_holds` (and falls back to the full grid).
+    3. on a row without switch loss (L_sw ≡ 0), (L_p, y(h)) of i lies inside the upper-right
+       hull of the other points, for a non-decreasing map y: F is then convex in (L_p, y)
+       wherever ψ∘y⁻¹ is. With ``a_max`` None, y = h: exact while ψ is convex in h, which the
+       caller verifies per request with :func:`core.pa_design.convexity_holds` (and falls back
+       to a safer pruning). With ``a_max`` = A, y = ln(1 + A²h²): then
+       ψ∘y⁻¹(u) ∝ ln(1 − k + k·eᵘ), k = (a/A)², whose second derivative
+       k(1 − k)eᵘ/(1 − k + k·eᵘ)² is ≥ 0 for every a ≤ A; A = inf takes y = ln h (ψ is convex
+       in ln h for every a, a softplus), so that pruning is exact for every request and its
+       rows are not returned as ``convex_rows``. The Bode–Fano floor max(ψ, const) keeps
+       convexity in every case.
+
+    Only rows where rule 3 drops a point that rules 1–2 keep depend on convexity.
 
     Parameters
     ----------
@@ -199,13 +210,16 @@ def prune(pts: Points, lp: F64, lsw: F64, h: F64) -> tuple[Points, NDArray[np.bo
         Uniform points (:meth:`Points.from_grid`).
     lp, lsw, h : ndarray, (Q,)
         Coordinates of every point.
+    a_max : float, optional
+        Largest Chebyshev scale a = |r − 1|/(2√r) for which rule 3 must be exact without a
+        check; None: y = h, checked by :func:`core.pa_design.convexity_holds` (a·h ≤ 1).
 
     Returns
     -------
     pruned : Points
         The kept points, never an empty segment.
     convex_rows : ndarray of bool, (R,)
-        Rows pruned with rule 3.
+        Rows whose rule-3 pruning holds only while ψ is convex in y (empty for A = inf).
     """
     if pts.uniform is None:
         raise ValueError("pts: pruning needs the uniform grid of Points.from_grid")
@@ -238,10 +252,22 @@ def prune(pts: Points, lp: F64, lsw: F64, h: F64) -> tuple[Points, NDArray[np.bo
     idx = np.arange(n_f)
     anchor = (idx == j) | (idx == k)
     keep &= ~((lo <= hi) & (h <= h_anchor) & ~anchor)
-    convex_rows = ~(c > 0).any(axis=(1, 2))
-    for r in np.flatnonzero(convex_rows):
+    hull_rows = ~(c > 0).any(axis=(1, 2))
+    before = keep.copy()
+    if a_max is None:
+        y = h
+    elif np.isinf(a_max):
+        y = np.log(np.maximum(h, 1e-300))  # h = 0: a far-left stand-in, ψ there ≥ ψ(0)
+    else:  # h over the segment's largest h: the check is then a·h_max ≤ A
+        h_top = np.maximum(h.max(axis=-1, keepdims=True), 1e-300)
+        y = np.log1p((a_max * h / h_top) ** 2)
+    for r in np.flatnonzero(hull_rows):
         for s in range(n_s):
-            keep[r, s] &= _upper_hull(a[r, s], h[r, s])
+            keep[r, s] &= _upper_hull(a[r, s], y[r, s])
+    # Only rows where rule 3 dropped a point that rules 1–2 kept depend on convexity.
+    convex_rows = (before & ~keep).any(axis=(1, 2))
+    if a_max is not None and np.isinf(a_max):
+        convex_rows[:] = False
     # Never leave a segment empty (cannot happen with the rules above; kept as a guard that
     # errs on the safe side: the whole grid of that segment).
     empty = ~keep.any(axis=-1)

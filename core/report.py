@@ -52,6 +52,8 @@ def scorecard_text(study: Study, evaluation: Any) -> str:
         f"Status: ✓ meets, ~ marginal (within {tol.marginal_db:g} dB / {tol.marginal_pae_pts:g} "
         "PAE points), ✗ misses, ! not reachable. Estimates are worst case over each band."
     )
+    if sc.empty:
+        lines += ["", "No candidate is enabled: add or show one to compare (candidates)."]
     summary = evaluation.summary.set_index("candidate") if len(evaluation.summary) else None
     for cand in dict.fromkeys(sc["candidate"]):
         rows = sc[sc["candidate"] == cand]

@@ -21,13 +21,13 @@ from numpy.typing import NDArray
 
 from core import rf
 from core.architectures import Plan
-from core.pa_design import convexity_holds, prune_points, solve
+from core.pa_design import convex_at_start, convexity_holds, prune_points, solve
 from core.pa_layout import LayoutParams, layout
 from core.pa_model import BF_GAMMA_LIMIT, DesignBatch, Solution
 from core.pa_points import Points
 from core.study.model import CandidateKind, DieArrangement, Study
 
-__all__ = ["sweep_table"]
+__all__ = ["REASON_TEXT", "sweep_arrays", "sweep_table"]
 
 _REASONS = (
     "P1dB needs more unit cells than the card combines",
@@ -65,44 +65,61 @@ def _subset(plan: Plan, rows: NDArray[np.int64]) -> tuple[DesignBatch, LayoutPar
     return DesignBatch(**values), lp, extra
 
 
-def _merge(a: Solution, b: Solution, where: NDArray[np.bool_]) -> Solution:
+def _solve_part(full: DesignBatch, p_req: NDArray[np.float64]) -> tuple[DesignBatch, Solution]:
+    pruned, convex = prune_points(full)
+    # Samples whose first periphery already breaks the convexity of pruning rule 3 in h go to
+    # rule 3 in ln h (exact for every request) at once; the others are checked after solving.
+    fast = convex_at_start(pruned, p_req, convex)
+    sol = solve(pruned, p_req[fast]) if fast.any() else None
+    ok = np.zeros(fast.shape, dtype=bool)
+    if sol is not None:
+        ok[fast] = convexity_holds(pruned, sol, convex)
+    if ok.all():
+        return pruned, sol
+    safe, _ = prune_points(full, np.inf)
+    redo = solve(safe, p_req[~ok])
+    if sol is None:
+        return pruned, replace(redo, curves=None)
+    full_sol = _expand(sol, fast, redo, ~ok)
+    return pruned, full_sol
+
+
+def _expand(a: Solution, a_rows: NDArray[np.bool_], b: Solution, b_rows: NDArray[np.bool_]):
+    """One solution of K samples from ``a`` (samples ``a_rows``) and ``b`` (``b_rows``, wins)."""
+    k_n = a_rows.shape[0]
+    k_a = int(a_rows.sum())
     changes = {}
     for f in fields(a):
         x, y = getattr(a, f.name), getattr(b, f.name)
-        if isinstance(x, np.ndarray) and x.ndim >= 2 and x.shape[0] == where.shape[0]:
-            x = x.copy()
-            x[where] = y
-            changes[f.name] = x
+        if isinstance(x, np.ndarray) and x.ndim >= 2 and x.shape[0] == k_a:
+            out = np.empty((k_n, *x.shape[1:]), dtype=np.result_type(x, y))
+            out[a_rows] = x
+            out[b_rows] = y
+            changes[f.name] = out
     return replace(a, **changes, curves=None)
 
 
-def _solve_part(full: DesignBatch, p_req: NDArray[np.float64]) -> tuple[DesignBatch, Solution]:
-    pruned, convex = prune_points(full)
-    sol = solve(pruned, p_req)
-    ok = convexity_holds(pruned, sol, convex)
-    if not ok.all():  # pruning rule 3 was not exact for these requests: full grid
-        sol = _merge(sol, solve(full, p_req[~ok]), ~ok)
-    return pruned, sol
-
-
 def _part(study: Study, plan: Plan, rows: NDArray[np.int64], x: NDArray, grouped: bool):
-    """Per-row (T, R_part) results of one solve: feasible, DC, die area, reason code."""
+    """Per-row (T, R_part) results of one solve: feasible, DC, die area, reason code.
+
+    ``x`` (B, T) holds the targets of each band: a row of band b is sized for x[b, t].
+    """
     b, lp, extra = _subset(plan, rows)
-    n_t, n_r = x.shape[0], rows.shape[0]
+    n_b, n_t = x.shape
+    n_r = rows.shape[0]
+    band = plan.row_band[rows]
     p = np.asarray(rf.dbm_to_w(x + study.estimator.p1db_margin_db))
     if grouped:
-        n_b = len(plan.bands)
-        band = plan.row_band[rows]
-        p_req = np.where(
-            band[None, None, :] == np.arange(n_b)[:, None, None], p[None, :, None], 0.0
-        )
+        p_req = np.where(band[None, None, :] == np.arange(n_b)[:, None, None], p[:, :, None], 0.0)
         p_req = p_req.reshape(n_b * n_t, n_r)
+        x_req = x.reshape(-1, 1)  # samples are (band, target)-major
     else:
-        p_req = np.broadcast_to(p[:, None], (n_t, n_r)).copy()
+        p_req = np.ascontiguousarray(p[band].T)
+        x_req = x[band].T
     pruned, sol = _solve_part(b, p_req)
     lay = layout(pruned, lp, sol, extra["overhead"])
     g = b.group
-    cells_bad = ~sol.cells_ok[:, g] & (sol.worst_p1db_dbm < _x_rows(x, p_req.shape[0], n_t))
+    cells_bad = ~sol.cells_ok[:, g] & (sol.worst_p1db_dbm < x_req)
     gain_bad = ~sol.gain_found[:, g] & (sol.worst_gain_db < extra["gain_target"][None, :])
     bf_bad = np.broadcast_to(sol.bf_gamma > BF_GAMMA_LIMIT, cells_bad.shape)
     code = cells_bad.astype(int) + 2 * gain_bad + 4 * bf_bad
@@ -117,42 +134,57 @@ def _part(study: Study, plan: Plan, rows: NDArray[np.int64], x: NDArray, grouped
     a_design = lay["area_design_mm2"][:, g]
     area = np.where(shared[None, :], a_design, np.maximum(extra["min_die"][None, :], a_design))
     if grouped:  # keep sample (j, t) for the row of band j
-        pick = plan.row_band[rows][None, :] * n_t + np.arange(n_t)[:, None]
+        pick = band[None, :] * n_t + np.arange(n_t)[:, None]
         code, dc, area = (np.take_along_axis(v, pick, axis=0) for v in (code, dc, area))
     return code, dc, area
 
 
-def _x_rows(x: NDArray, k_n: int, n_t: int) -> NDArray:
-    """The P1dB target of each sample as a column, (K, 1): samples are (band, target)-major."""
-    return np.tile(x, k_n // n_t)[:, None]
+def sweep_arrays(study: Study, plan: Plan, x: NDArray[np.float64]) -> dict[str, NDArray]:
+    """Reason code, DC power and die area of every row × target, each (R, T).
 
-
-def sweep_table(study: Study, plan: Plan, x: NDArray[np.float64]) -> pd.DataFrame:
-    """Rows candidate × band × target of :func:`core.estimate.sweep_p1db`."""
+    ``x`` is (T,) — the same targets for every band — or (B, T), the targets of each band
+    (a row of band b is sized for x[b]). Code bits: 1 cells, 2 gain, 4 Bode–Fano
+    (:data:`_REASONS`); 0 is feasible. ``target`` (R, T) is each row's target.
+    """
+    n_b = len(plan.bands)
+    x = np.asarray(x, dtype=float)
+    x2 = np.broadcast_to(x, (n_b, x.shape[-1])) if x.ndim == 1 else x
+    if x2.shape[0] != n_b:
+        raise ValueError(f"x: must have one row of targets per band ({n_b}), got {x2.shape[0]}")
     kinds = np.array([c.kind for c in plan.candidates], dtype=object)[plan.row_cand]
     separate = kinds == CandidateKind.SEPARATE
-    n_t, n_r = x.shape[0], plan.n_rows
+    n_t, n_r = x2.shape[1], plan.n_rows
     code = np.zeros((n_t, n_r), dtype=int)
     dc = np.zeros((n_t, n_r))
     area = np.zeros((n_t, n_r))
     for mask, grouped in ((separate, False), (~separate, True)):
         rows = np.flatnonzero(mask)
         if rows.size:
-            code[:, rows], dc[:, rows], area[:, rows] = _part(study, plan, rows, x, grouped)
-    table = np.array(
-        ["; ".join(r for bit, r in enumerate(_REASONS) if c >> bit & 1) for c in range(8)],
-        dtype=object,
-    )
+            code[:, rows], dc[:, rows], area[:, rows] = _part(study, plan, rows, x2, grouped)
+    return {"code": code.T, "dc_power_w": dc.T, "die_area_mm2": area.T, "target": x2[plan.row_band]}
+
+
+#: Reason text of each code 0 … 7 (bits of :data:`_REASONS`).
+REASON_TEXT = tuple(
+    "; ".join(r for bit, r in enumerate(_REASONS) if c >> bit & 1) for c in range(8)
+)
+
+
+def sweep_table(study: Study, plan: Plan, x: NDArray[np.float64]) -> pd.DataFrame:
+    """Rows candidate × band × target of :func:`core.estimate.sweep_p1db`."""
+    arr = sweep_arrays(study, plan, x)
+    n_t = arr["code"].shape[1]
+    code = arr["code"].reshape(-1)
     names = np.array([c.name for c in plan.candidates], dtype=object)[plan.row_cand]
     bands = np.array([b.name for b in plan.bands], dtype=object)[plan.row_band]
     return pd.DataFrame(
         {
             "candidate": np.repeat(names, n_t),
             "band": np.repeat(bands, n_t),
-            "p1db_target_dbm": np.tile(x, n_r),
-            "feasible": (code == 0).T.reshape(-1),
-            "dc_power_w": dc.T.reshape(-1),
-            "die_area_mm2": area.T.reshape(-1),
-            "reason": table[code.T.reshape(-1)],
+            "p1db_target_dbm": arr["target"].reshape(-1),
+            "feasible": code == 0,
+            "dc_power_w": arr["dc_power_w"].reshape(-1),
+            "die_area_mm2": arr["die_area_mm2"].reshape(-1),
+            "reason": np.array(REASON_TEXT, dtype=object)[code],
         }
     )

@@ -327,6 +327,8 @@ class ArraySizingPage(QWidget):
             if candidate not in shown:
                 item.hide()
         self.feas_plot.getAxis("left").setTicks([ticks])
+        # One readable row per candidate: pyqtgraph drops tick labels that would overlap.
+        self.graphics.ci.layout.setRowMinimumHeight(3, 17.0 * max(len(ticks), 1) + 45.0)
         self.optima.setText(self._optima_text(rows))
         n_max = float(rows["n_elements"].max()) if not rows.empty else 1024.0
         for v in vb:

@@ -104,7 +104,7 @@ class CostSummaryTableModel(QAbstractTableModel):
     COLUMNS = (
         ("Candidate", "candidate", "{}", ""),
         ("Die\ndesigns", "n_designs", "{:.0f}", "nre"),
-        ("Silicon per\nelement (mm²)", "channel_area_mm2", "{:.2f}", "die_area"),
+        ("Die area per\nelement (mm²)", "channel_area_mm2", "{:.2f}", "die_area"),
         ("Dies/wafer\nformula", "gross_dpw_formula", "{:,.0f}", "die_cost"),
         ("Dies/wafer\nexact", "gross_dpw_exact", "{:,.0f}", "die_cost"),
         ("Die yield\n(%)", "die_yield_pct", "{:.1f}", "die_cost"),

@@ -71,12 +71,21 @@ _METRICS: tuple[tuple[str, str, str, str], ...] = (
 #: derivation key, tooltip). Sources: "eval" = the evaluation summary, "cost" = the cost model's
 #: per-candidate table, "score" = the weighted scores. A column its source lacks is left out.
 _SUMMARY: tuple[tuple[str, str, str, str, float, str, str, str], ...] = (
-    ("eval", "die_area_mm2", "Die area", "mm²", 1.0, "{:.2f}", "die_area", "Largest die"),
-    ("eval", "dc_power_w", "DC power", "W/PA", 1.0, "{:.2f}", "dc_power", "One PA at P1dB"),
+    (
+        "eval",
+        "die_area_mm2",
+        "Largest die",
+        "mm²",
+        1.0,
+        "{:.2f}",
+        "die_area",
+        "Area of the largest die; the total per element is on the Die & Cost page",
+    ),
+    ("eval", "dc_power_w", "DC at P1dB", "W/PA", 1.0, "{:.2f}", "dc_power", "One PA at P1dB"),
     (
         "eval",
         "array_dc_power_w",
-        "Array DC",
+        "Array DC at P1dB",
         "W",
         1.0,
         "{:.1f}",

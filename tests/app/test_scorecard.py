@@ -60,8 +60,8 @@ def test_header_groups_bands_and_shows_units(scorecard):
     assert groups == [study.bands[0].name] * 3 + [study.bands[1].name] * 3
     labels = [m.headerData(i, Qt.Orientation.Horizontal) for i in range(m.columnCount())]
     assert labels[1:4] == ["Gain\n(dB)", "P1dB\n(dBm)", "PAE\n(%)"]
-    assert "Die area\n(mm²)" in labels and "DC power\n(W/PA)" in labels
-    assert "Array DC\n(W)" in labels
+    assert "Largest die\n(mm²)" in labels and "DC at P1dB\n(W/PA)" in labels
+    assert "Array DC at P1dB\n(W)" in labels
     assert page.header.height() >= 2 * page.header.group_height()  # two header rows
 
 

@@ -327,3 +327,25 @@ def test_unicode_long_names_and_large_study(demo):
     assert wb["Curves"].max_row == 1 + len(ev.curves)
     # Sheet titles never come from user text, so every one is a fixed, valid title.
     assert all(len(t) <= 31 for t in wb.sheetnames)
+
+
+def test_formulas_reproduce_the_real_cost_model(tmp_path):
+    # Same method as above (the `formulas` package recomputes the workbook), but on the real
+    # chain: core.estimate.evaluate → core.costing.cost_study for both demo studies.
+    from core.costing import cost_study
+    from core.estimate import evaluate
+    from core.resources import demo_studies
+
+    for name, path in demo_studies().items():
+        study = load_study(path)
+        ev = evaluate(study)
+        cost = cost_study(study, ev)
+        out = tmp_path / f"{name}.xlsx"
+        write_workbook(study, ev, out, cost=cost)
+        ws = openpyxl.load_workbook(out)["Area & Cost"]
+        head = next(r for r in range(1, ws.max_row + 1) if ws.cell(r, 1).value == "Per radio")
+        sol = _solve(out)
+        for i, p in enumerate(cost.per_candidate.itertuples(index=False)):
+            got = sol[f"'AREA & COST'!L{head + 2 + i}"]
+            assert math.isclose(got, p.unit_cost_at_design_volume_usd, rel_tol=1e-9), (name, i)
+            assert math.isclose(sol[f"'AREA & COST'!J{head + 2 + i}"], p.nre_usd, rel_tol=1e-9)
