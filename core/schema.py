@@ -13,6 +13,7 @@ Decoding never stops at the first problem: it collects ``(path, reason)`` pairs,
 from __future__ import annotations
 
 import dataclasses
+import functools
 import math
 from collections.abc import Callable
 from dataclasses import dataclass, field
@@ -144,8 +145,9 @@ def items(cls: type, *, label: str = "", note: str = "", lo: int = 0) -> Any:
     return field(default=(), metadata=_meta(spec))
 
 
+@functools.cache
 def field_spec(cls: type, name: str) -> FieldSpec:
-    """The :class:`FieldSpec` of field ``name`` of study dataclass ``cls``."""
+    """The :class:`FieldSpec` of field ``name`` of study dataclass ``cls`` (cached: fixed)."""
     for f in dataclasses.fields(cls):
         if f.name == name:
             return f.metadata["spec"]

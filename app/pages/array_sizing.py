@@ -100,11 +100,11 @@ class ArraySizingPage(QWidget):
         self.graphics.setObjectName("ArrayPlots")
         self.graphics.setBackground("w")
         self.p1db_plot = self.graphics.addPlot(row=0, col=0)
-        _style_plot(self.p1db_plot, "P1dB/elem. (dBm)")
+        _style_plot(self.p1db_plot, "P1dB (dBm)")
         self.dc_plot = self.graphics.addPlot(row=1, col=0)
-        _style_plot(self.dc_plot, "Array DC power (W)")
+        _style_plot(self.dc_plot, "DC power (W)")
         self.cost_plot = self.graphics.addPlot(row=2, col=0)
-        _style_plot(self.cost_plot, "Array PA cost (USD)")
+        _style_plot(self.cost_plot, "PA cost (USD)")
         self.feas_plot = self.graphics.addPlot(row=3, col=0)
         _style_plot(self.feas_plot, "Reachable")
         self.feas_plot.setLabel("bottom", "Array elements N (log scale)")
@@ -147,9 +147,9 @@ class ArraySizingPage(QWidget):
         top.addWidget(QLabel("<b>Band</b>"))
         top.addWidget(self.band_combo)
         intro = QLabel(
-            "Per-element P1dB for the link's EIRP, then each candidate's array PA DC power "
-            "and PA cost; ★ marks the lowest-power and the cheapest N. Colours as on the "
-            "Reachable strip."
+            "From the top: P1dB each element's PA needs for the link's EIRP; the whole array's PA "
+            "DC power at P1dB; the array's PA cost; where each candidate can reach it. "
+            "★ marks the lowest-power and the cheapest N; colours as on the Reachable strip."
         )
         intro.setWordWrap(True)
         top.addWidget(intro, 1)
@@ -328,7 +328,7 @@ class ArraySizingPage(QWidget):
                 item.hide()
         self.feas_plot.getAxis("left").setTicks([ticks])
         # One readable row per candidate: pyqtgraph drops tick labels that would overlap.
-        self.graphics.ci.layout.setRowMinimumHeight(3, 17.0 * max(len(ticks), 1) + 45.0)
+        self.graphics.ci.layout.setRowMinimumHeight(3, 21.0 * max(len(ticks), 1) + 45.0)
         self.optima.setText(self._optima_text(rows))
         n_max = float(rows["n_elements"].max()) if not rows.empty else 1024.0
         for v in vb:
@@ -336,9 +336,9 @@ class ArraySizingPage(QWidget):
         # The N axis spans the sweep exactly; labels and markers must not widen it.
         self.p1db_plot.setXRange(0.0, np.log10(max(n_max, 2.0)), padding=0.02)
         self.feas_plot.setYRange(-0.7, max(len(ticks), 1) - 0.3, padding=0)
-        self.feas_plot.getAxis("left").setWidth(150)
+        self.feas_plot.getAxis("left").setWidth(185)
         for plot in (self.p1db_plot, self.dc_plot, self.cost_plot):
-            plot.getAxis("left").setWidth(150)
+            plot.getAxis("left").setWidth(185)
 
     @staticmethod
     def _optima_text(rows: pd.DataFrame) -> str:

@@ -202,6 +202,7 @@ class CardParameterTableModel(QAbstractTableModel):
 
     def __init__(self, controller: StudyController) -> None:
         super().__init__(controller)
+        self._shown_card: Any = None
         self._c = controller
         self._rows = _rows()
         self._card_index: int | None = None
@@ -254,8 +255,12 @@ class CardParameterTableModel(QAbstractTableModel):
         if self._card_index is not None and self.card() is None:
             self.set_card_index(None)
             return
+        card = self.card()
+        if card is self._shown_card and not self.row_errors:
+            return  # edits elsewhere in the study leave this card (the same object) untouched
+        self._shown_card = card
         self.row_errors.clear()
-        if self._rows and self.card() is not None:
+        if self._rows and card is not None:
             self.dataChanged.emit(
                 self.index(0, 0), self.index(len(self._rows) - 1, len(self.COLUMNS) - 1)
             )

@@ -295,6 +295,7 @@ class DieCostPage(QWidget):
 
     def __init__(self, controller: StudyController, parent: QWidget | None = None) -> None:
         super().__init__(parent)
+        self._pending: Any = None
         self._c = controller
         self.cost: CostResult | None = None
         self.scores: Any = None
@@ -478,7 +479,23 @@ class DieCostPage(QWidget):
 
     # -- controller → view ---------------------------------------------------------------
     def _on_controller_evaluation_changed(self, evaluation: Any, _seconds: float) -> None:
-        self.refresh(evaluation)
+        # Redrawing bars, curves and the wafer map is the slowest refresh in the window: do it
+        # now only when the page is on screen, otherwise when it is next shown.
+        self._pending = evaluation
+        if self.isVisible():
+            self.refresh(evaluation)
+            self._pending = None
+
+    def showEvent(self, event: Any) -> None:
+        super().showEvent(event)
+        if self._pending is not None:
+            evaluation, self._pending = self._pending, None
+            self.refresh(evaluation)
+
+    def prepare_snapshot(self) -> None:
+        if self._pending is not None:
+            evaluation, self._pending = self._pending, None
+            self.refresh(evaluation)
 
     def refresh(self, evaluation: Any) -> None:
         """Recompute (or take the controller's) cost result and update every view."""

@@ -45,6 +45,7 @@ class ProcessCardsPage(QWidget):
 
     def __init__(self, controller: StudyController, parent: QWidget | None = None) -> None:
         super().__init__(parent)
+        self._cards_shown: tuple = ()
         self._c = controller
         self._select_after: int | None = None
 
@@ -260,9 +261,10 @@ class ProcessCardsPage(QWidget):
         shown = [self.card_list.item(i).text() for i in range(self.card_list.count())]
         if names != shown or select != self.current_index():
             self._rebuild_list(select)
-        else:
+        elif self._c.study.process_cards != self._cards_shown:
             self._refresh_editor()
             self._rebuild_tooltips()
+        self._cards_shown = self._c.study.process_cards
 
     def _rebuild_tooltips(self) -> None:
         for i, card in enumerate(self._c.study.process_cards):

@@ -517,9 +517,12 @@ class ScorecardPage(QWidget):
         self.table.setWordWrap(False)
         self.table.setCornerButtonEnabled(False)
         self.table.verticalHeader().setVisible(False)
-        self.table.verticalHeader().setSectionResizeMode(QHeaderView.ResizeMode.ResizeToContents)
-        self.header.setSectionResizeMode(QHeaderView.ResizeMode.ResizeToContents)
+        # Sizes are fitted once per new table shape (see _fit), not on every data change:
+        # ResizeToContents would re-measure every cell on each edit.
+        self.table.verticalHeader().setSectionResizeMode(QHeaderView.ResizeMode.Interactive)
+        self.header.setSectionResizeMode(QHeaderView.ResizeMode.Interactive)
         self.table.frozen.verticalHeader().setSectionResizeMode(QHeaderView.ResizeMode.Fixed)
+        self.model.modelReset.connect(self._fit)
         self.header.setSortIndicator(-1, Qt.SortOrder.AscendingOrder)  # study order at first
         self.table.setSortingEnabled(True)
         self.table.setItemDelegate(FramedSelectionDelegate(self.table))
@@ -609,6 +612,11 @@ class ScorecardPage(QWidget):
     def _request(self, proxy_index: QModelIndex) -> None:
         src = self.proxy.mapToSource(proxy_index)
         self._c.derivation_requested.emit(self.model.derivation_at(src.row(), src.column()))
+
+    def _fit(self) -> None:
+        """Fit rows and columns to their contents (after the table's shape changed)."""
+        self.table.resizeColumnsToContents()  # the frozen column follows via sectionResized
+        self.table.resizeRowsToContents()
 
     def prepare_snapshot(self) -> None:
         """Select the first candidate's gain on the first band so the dock shows a derivation."""
