@@ -193,6 +193,9 @@ class StudyController(QObject):
         """Refusals, validation warnings and evaluation findings, as Problems."""
         out = list(self._refusals)
         out += [p for p in check_study(self._study) if p.severity == "warning"]
+        from core.link_plan import target_findings
+
+        out += target_findings(self._study)
         ev = self.evaluation
         if ev is not None:
             findings = list(ev.findings) + list(getattr(self.cost, "findings", ()))

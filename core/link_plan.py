@@ -20,6 +20,7 @@ from numpy.typing import ArrayLike
 from core.cost import die_yield, gross_dies_per_wafer
 from core.costing import cost_inputs
 from core.link import LinkBudget, LinkInputs, array_sweep, link_budget, worst_case_frequency_hz
+from core.schema import Problem
 from core.study.model import BandSpec, CandidateKind, Combining, Study
 
 __all__ = [
@@ -31,6 +32,7 @@ __all__ = [
     "ledger_derivation",
     "link_inputs",
     "study_ledgers",
+    "target_findings",
 ]
 
 #: Name of the single extra-loss line a study's total ``extra_loss_db`` becomes.
@@ -157,6 +159,42 @@ def study_ledgers(study: Study) -> dict[str, LinkBudget]:
     ['n257']
     """
     return {b.name: band_ledger(b) for b in study.bands}
+
+
+def target_findings(study: Study, tolerance_db: float = 0.05) -> list[Problem]:
+    """Warnings for bands whose P1dB target is below what their own link ledger needs.
+
+    A target under the ledger's per-element P1dB makes every "meets" on the scorecard
+    optimistic for that link; a target far above it over-specifies the PA. The first is a
+    warning, the second (more than 3 dB above) a note.
+
+    Returns
+    -------
+    list of Problem
+        With paths ``bands[i].targets.p1db_dbm``.
+    """
+    out: list[Problem] = []
+    for i, band in enumerate(study.bands):
+        need = band_ledger(band).p1db_elem_dbm
+        have = band.targets.p1db_dbm
+        where = f"bands[{i}].targets.p1db_dbm"
+        n = band.link.n_elements
+        if have < need - tolerance_db:
+            out.append(Problem(
+                where,
+                f"{band.name}: target {have:g} dBm is below the {need:.2f} dBm per element its "
+                f"link ledger needs with {n} elements; the scorecard is optimistic for this "
+                "link (adopt the ledger value on the Link Ledger page).",
+                "warning",
+            ))  # fmt: skip
+        elif have > need + 3.0:
+            out.append(Problem(
+                where,
+                f"{band.name}: target {have:g} dBm is {have - need:.1f} dB above the "
+                f"{need:.2f} dBm its link ledger needs with {n} elements.",
+                "note",
+            ))  # fmt: skip
+    return out
 
 
 @dataclass(frozen=True, slots=True)

@@ -33,7 +33,10 @@ def study_summary_text(study: Study) -> str:
         f"  {c.name:<28} {c.kind.value:<9} on {c.process}" + ("" if c.enabled else " (hidden)")
         for c in study.candidates
     ]
+    from core.link_plan import target_findings
+
     warnings = [p for p in check_study(study) if p.severity == "warning"]
+    warnings += target_findings(study)
     if warnings:
         lines += ["", "Warnings:"] + [f"  {w}" for w in warnings]
     return "\n".join(lines) + "\n"

@@ -90,7 +90,8 @@ class ArraySizingPage(QWidget):
         note = QLabel(
             "PA cost = N × recurring cost of one packaged PA die (dies per wafer from the "
             "published estimate, yield model and test/package figures of the study); NRE is "
-            "on the Die & Cost page."
+            "on the Die & Cost page. DC power counts the PAs only: beamformer, LNA and bias "
+            "overheads per element are not modelled, so it falls steadily with N."
         )
         note.setWordWrap(True)
         note.setStyleSheet("color:#555")
@@ -357,7 +358,13 @@ class ArraySizingPage(QWidget):
                 )
             if not low.empty:
                 d = low.iloc[0]
-                bits.append(f"lowest DC N = {int(d['n_elements'])} ({d['array_dc_power_w']:.3g} W)")
+                if int(d["n_elements"]) == int(r["n_elements"].max()):
+                    # Array DC ∝ N·P_elem ∝ 1/N with no per-element overhead in the model.
+                    bits.append(f"DC keeps falling to N = {int(d['n_elements'])}")
+                else:
+                    bits.append(
+                        f"lowest DC N = {int(d['n_elements'])} ({d['array_dc_power_w']:.3g} W)"
+                    )
             parts.append(f"<b>{candidate}</b>: " + ", ".join(bits))
         return "★ " + " · ".join(parts)
 

@@ -195,3 +195,19 @@ def test_array_optimum_marks_one_feasible_minimum():
 def test_array_plan_rejects_bad_n(harbour, bad):
     with pytest.raises(ValueError, match=r"^n_values: must"):
         array_plan(harbour, np.asarray(bad, dtype=float))
+
+
+def test_target_below_the_ledger_is_warned_and_adopting_clears_it():
+    import dataclasses
+
+    from core.link_plan import band_ledger, target_findings
+    from core.study import load_study
+
+    study = load_study(demo_path("harbour-small-cell"))
+    assert [p for p in target_findings(study) if p.severity == "warning"] == []
+    need = band_ledger(study.bands[0]).p1db_elem_dbm
+    low = dataclasses.replace(
+        study.bands[0], targets=dataclasses.replace(study.bands[0].targets, p1db_dbm=need - 1)
+    )
+    found = target_findings(dataclasses.replace(study, bands=(low, *study.bands[1:])))
+    assert [p.path for p in found if p.severity == "warning"] == ["bands[0].targets.p1db_dbm"]
