@@ -324,7 +324,8 @@ _SIGE = ProcessCard(
     d0_per_cm2=0.2,
     mask_set_cost_usd=600e3,
     source_note="Representative 0.13 µm SiGe BiCMOS figures (emitter length as periphery), "
-    "from memory; calibrate to your foundry's design kit.",
+    "from memory; Vdd 3.3 V assumes a cascode output stage, since one high-fmax HBT breaks "
+    "down near 1.5–2 V. Calibrate to your foundry's design kit.",
 )
 _SOI = ProcessCard(
     name="Stacked-FET SOI CMOS 45 nm",

@@ -358,10 +358,39 @@ def _design_sheet(ws: Worksheet, design: pd.DataFrame) -> None:
 
 
 # --------------------------------------------------------------------------------- Curves
+#: Above this many curve rows the Curves sheet is thinned (openpyxl writes ~15k rows/s here,
+#: and a reviewer reads curves in the charts; the CSV export keeps every point).
+_MAX_CURVE_ROWS = 30_000
+
+
+def _thin_curves(curves: pd.DataFrame) -> tuple[pd.DataFrame, int]:
+    """Every k-th point of each (candidate, band) curve plus its last and its worst points."""
+    k = math.ceil(len(curves) / _MAX_CURVE_ROWS)
+    if k <= 1:
+        return curves, 1
+    keys = [curves["candidate"].astype(str), curves["band"].astype(str)]
+    grouped = curves.groupby(keys, sort=False)
+    pos = grouped.cumcount().to_numpy()
+    size = grouped["f_hz"].transform("size").to_numpy()
+    keep = (pos % k == 0) | (pos == size - 1)
+    for metric in ("gain_db", "p1db_dbm", "pae_pct"):
+        keep[curves.index.get_indexer(grouped[metric].idxmin())] = True
+    return curves[keep], k
+
+
 def _curves_sheet(ws: Worksheet, study: Study, curves: pd.DataFrame) -> None:
     """Tidy table, then one chart per metric with a series per (candidate, band)."""
     labels = ["Candidate", "Band", "f (GHz)", "Gain (dB)", "P1dB (dBm)", "PAE (%)"]
     _header(ws, 1, labels)
+    n_all = len(curves)
+    curves, k = _thin_curves(curves.reset_index(drop=True))
+    if k > 1:
+        _put(
+            ws, 2, 8,
+            f"Large study: the table keeps every {k}th frequency point of each curve plus its "
+            f"last and worst points ({len(curves)} of {n_all} rows); the CSV export of the "
+            "curves has every point.",
+        )  # fmt: skip
     cand = [_value(v) for v in curves["candidate"]]
     band = [_value(v) for v in curves["band"]]
     f_ghz = (curves["f_hz"].to_numpy(float) / 1e9).tolist()

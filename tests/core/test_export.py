@@ -349,3 +349,27 @@ def test_formulas_reproduce_the_real_cost_model(tmp_path):
             got = sol[f"'AREA & COST'!L{head + 2 + i}"]
             assert math.isclose(got, p.unit_cost_at_design_volume_usd, rel_tol=1e-9), (name, i)
             assert math.isclose(sol[f"'AREA & COST'!J{head + 2 + i}"], p.nre_usd, rel_tol=1e-9)
+
+
+def test_large_curve_tables_are_thinned_but_keep_edges_and_worst_points():
+    from core.export.workbook import _MAX_CURVE_ROWS, _thin_curves
+
+    rng = np.random.default_rng(3)
+    n_curves, n_f = 400, 101  # 40 400 rows, above the sheet limit
+    curves = pd.DataFrame(
+        {
+            "candidate": np.repeat([f"c{i // 4}" for i in range(n_curves)], n_f),
+            "band": np.repeat([f"b{i % 4}" for i in range(n_curves)], n_f),
+            "f_hz": np.tile(np.linspace(24e9, 28e9, n_f), n_curves),
+            "gain_db": rng.normal(20, 1, n_curves * n_f),
+            "p1db_dbm": rng.normal(25, 1, n_curves * n_f),
+            "pae_pct": rng.normal(20, 2, n_curves * n_f),
+        }
+    )
+    thin, k = _thin_curves(curves)
+    assert k == 2 and len(thin) <= _MAX_CURVE_ROWS + 3 * n_curves
+    for (_c, _b), g in curves.groupby(["candidate", "band"]):
+        t = thin[(thin.candidate == _c) & (thin.band == _b)]
+        assert t.f_hz.min() == g.f_hz.min() and t.f_hz.max() == g.f_hz.max()
+        for m in ("gain_db", "p1db_dbm", "pae_pct"):
+            assert t[m].min() == g[m].min()  # the worst in-band value survives
