@@ -29,11 +29,13 @@ from PySide6.QtCore import (
 )
 from PySide6.QtGui import QColor
 from PySide6.QtWidgets import (
+    QAbstractItemView,
     QApplication,
     QComboBox,
     QStyle,
     QStyledItemDelegate,
     QStyleOptionViewItem,
+    QTableView,
     QWidget,
 )
 
@@ -41,7 +43,14 @@ from app.controller import StudyController
 from core.edits import get_in
 from core.schema import FieldSpec
 
-__all__ = ["OPTIONS_ROLE", "CollectionTableModel", "FieldColumn", "FieldDelegate", "parse_cell"]
+__all__ = [
+    "OPTIONS_ROLE",
+    "CollectionTableModel",
+    "FieldColumn",
+    "FieldDelegate",
+    "editable_table_view",
+    "parse_cell",
+]
 
 Index = QModelIndex | QPersistentModelIndex
 
@@ -357,3 +366,26 @@ class FieldDelegate(QStyledItemDelegate):
                 model.setData(index, editor.currentData(), Qt.ItemDataRole.EditRole)
             return
         super().setModelData(editor, model, index)
+
+
+def editable_table_view(
+    model: QAbstractItemModel,
+    object_name: str,
+    delegate: QStyledItemDelegate | None = None,
+    parent: QWidget | None = None,
+) -> QTableView:
+    """A row-selecting table over ``model`` that edits on double-click, F2 or typing."""
+    table = QTableView(parent)
+    table.setObjectName(object_name)
+    table.setModel(model)
+    if delegate is not None:
+        table.setItemDelegate(delegate)
+    table.setSelectionBehavior(QAbstractItemView.SelectionBehavior.SelectRows)
+    table.setSelectionMode(QAbstractItemView.SelectionMode.SingleSelection)
+    table.setEditTriggers(
+        QAbstractItemView.EditTrigger.DoubleClicked
+        | QAbstractItemView.EditTrigger.EditKeyPressed
+        | QAbstractItemView.EditTrigger.AnyKeyPressed
+    )
+    table.verticalHeader().setVisible(False)
+    return table

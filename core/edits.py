@@ -30,6 +30,7 @@ __all__ = [
     "parse_path",
     "set_in",
     "try_apply",
+    "unique_name",
 ]
 
 Path = tuple[str | int, ...]
@@ -51,6 +52,20 @@ class EditRefused(ValueError):
     def __init__(self, problems: list[Problem]) -> None:
         self.problems = problems
         super().__init__(str(problems[0]) if problems else "edit refused")
+
+
+def unique_name(name: str, taken: set[str] | frozenset[str]) -> str:
+    """``name``, or ``name (2)``, ``name (3)``… — the first not in ``taken``.
+
+    >>> unique_name("n257", {"n257", "n257 (2)"})
+    'n257 (3)'
+    """
+    if name not in taken:
+        return name
+    k = 2
+    while f"{name} ({k})" in taken:
+        k += 1
+    return f"{name} ({k})"
 
 
 def format_path(path: Path) -> str:

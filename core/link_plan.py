@@ -11,7 +11,6 @@ count and DC power; :func:`array_optimum` marks the best N per candidate and ban
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
 import numpy as np
 import pandas as pd
@@ -19,13 +18,13 @@ from numpy.typing import ArrayLike
 
 from core.cost import die_yield, gross_dies_per_wafer
 from core.costing import cost_inputs
+from core.evaluation import Derivation
 from core.link import LinkBudget, LinkInputs, array_sweep, link_budget, worst_case_frequency_hz
 from core.schema import Problem
 from core.study.model import BandSpec, CandidateKind, Combining, Study
 
 __all__ = [
     "EXTRA_LOSS_NAME",
-    "LedgerDerivation",
     "array_optimum",
     "array_plan",
     "band_ledger",
@@ -197,19 +196,6 @@ def target_findings(study: Study, tolerance_db: float = 0.05) -> list[Problem]:
     return out
 
 
-@dataclass(frozen=True, slots=True)
-class LedgerDerivation:
-    """How one ledger line was computed, in the shape the Derivation view shows."""
-
-    title: str
-    formula: str
-    inputs: tuple[tuple[str, float, str], ...]
-    steps: tuple[tuple[str, float, str], ...]
-    result: float
-    unit: str
-    source: str
-
-
 # Ledger line → the lines it is computed from (names of core.link.link_budget rows).
 _LINE_INPUTS: dict[str, tuple[str, ...]] = {
     "Free-space loss": ("Frequency", "Path length"),
@@ -243,7 +229,7 @@ def _line_inputs(budget: LinkBudget, name: str) -> list[str]:
     return names
 
 
-def ledger_derivation(budget: LinkBudget, item_name: str) -> LedgerDerivation:
+def ledger_derivation(budget: LinkBudget, item_name: str) -> Derivation:
     """The derivation of one ledger line: its formula, inputs and intermediate values.
 
     Parameters
@@ -255,7 +241,7 @@ def ledger_derivation(budget: LinkBudget, item_name: str) -> LedgerDerivation:
 
     Returns
     -------
-    LedgerDerivation
+    Derivation
         ``title`` (line name and frequency), ``formula``, ``inputs`` as (name, value, unit)
         of the lines it is computed from (empty for a user input), ``steps`` with unit
         conversions worth checking by hand, ``result``, ``unit`` and ``source``.
@@ -296,7 +282,7 @@ def ledger_derivation(budget: LinkBudget, item_name: str) -> LedgerDerivation:
     source = row.source
     if item_name in ("Compliance distance", "Exposure limit"):
         source = f"{source}. {budget.exposure_caution}"
-    return LedgerDerivation(
+    return Derivation(
         title=f"{row.name} ({row.group}, at {budget.f_hz / 1e9:.3f} GHz)",
         formula=f"{row.name} = {row.formula}",
         inputs=inputs,

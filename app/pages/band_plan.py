@@ -4,7 +4,6 @@ from __future__ import annotations
 
 from PySide6.QtCore import QEvent, Qt
 from PySide6.QtWidgets import (
-    QAbstractItemView,
     QFormLayout,
     QHBoxLayout,
     QHeaderView,
@@ -13,27 +12,17 @@ from PySide6.QtWidgets import (
     QMenu,
     QPlainTextEdit,
     QPushButton,
-    QTableView,
     QVBoxLayout,
     QWidget,
 )
 
 from app.controller import StudyController
-from app.tables import CollectionTableModel, FieldColumn
+from app.tables import CollectionTableModel, FieldColumn, editable_table_view
 from core.bands import FR2_PRESETS
-from core.edits import InsertItem, RemoveItem
+from core.edits import InsertItem, RemoveItem, unique_name
 from core.study import BandSpec
 
 __all__ = ["BandPlanPage"]
-
-
-def _unique(name: str, taken: set[str]) -> str:
-    if name not in taken:
-        return name
-    k = 2
-    while f"{name} ({k})" in taken:
-        k += 1
-    return f"{name} ({k})"
 
 
 def _preset_label(b: BandSpec) -> str:
@@ -80,16 +69,7 @@ class BandPlanPage(QWidget):
             ),
         ]
         self.model = CollectionTableModel(controller, "bands", BandSpec, columns)
-        self.table = QTableView(self)
-        self.table.setObjectName("BandTable")
-        self.table.setModel(self.model)
-        self.table.setSelectionBehavior(QAbstractItemView.SelectionBehavior.SelectRows)
-        self.table.setEditTriggers(
-            QAbstractItemView.EditTrigger.DoubleClicked
-            | QAbstractItemView.EditTrigger.EditKeyPressed
-            | QAbstractItemView.EditTrigger.AnyKeyPressed
-        )
-        self.table.verticalHeader().setVisible(False)
+        self.table = editable_table_view(self.model, "BandTable", parent=self)
         hh = self.table.horizontalHeader()
         hh.setSectionResizeMode(QHeaderView.ResizeMode.ResizeToContents)
         hh.setStretchLastSection(True)
@@ -181,7 +161,7 @@ class BandPlanPage(QWidget):
         taken = {x.name for x in study.bands}
         template = study.bands[-1] if study.bands else BandSpec()
         spec = BandSpec(
-            name=_unique(name, taken),
+            name=unique_name(name, taken),
             f_low_ghz=b.f_low_hz / 1e9,
             f_high_ghz=b.f_high_hz / 1e9,
             preset=name,
@@ -195,7 +175,7 @@ class BandPlanPage(QWidget):
         taken = {x.name for x in study.bands}
         template = study.bands[-1] if study.bands else BandSpec()
         spec = BandSpec(
-            name=_unique("custom", taken),
+            name=unique_name("custom", taken),
             f_low_ghz=template.f_low_ghz,
             f_high_ghz=template.f_high_ghz,
             preset="",

@@ -11,20 +11,18 @@ import dataclasses
 
 from PySide6.QtCore import Qt
 from PySide6.QtWidgets import (
-    QAbstractItemView,
     QHBoxLayout,
     QHeaderView,
     QLabel,
     QMenu,
     QPushButton,
-    QTableView,
     QVBoxLayout,
     QWidget,
 )
 
 from app.controller import StudyController
-from app.tables import CollectionTableModel, FieldColumn, FieldDelegate
-from core.edits import InsertItem, RemoveItem
+from app.tables import CollectionTableModel, FieldColumn, FieldDelegate, editable_table_view
+from core.edits import InsertItem, RemoveItem, unique_name
 from core.study import Candidate, CandidateKind, Combining, DieArrangement
 
 __all__ = ["KIND_LABELS", "CandidatesPage", "candidate_columns", "new_candidate"]
@@ -142,12 +140,7 @@ def new_candidate(
     Options are copied from ``template`` (an existing candidate of the same kind) when given,
     otherwise they take the model's defaults.
     """
-    base = _DEFAULT_NAMES[kind]
-    name = base
-    k = 2
-    while name in taken:
-        name = f"{base} {k}"
-        k += 1
+    name = unique_name(_DEFAULT_NAMES[kind], taken)
     if template is not None:
         return dataclasses.replace(template, name=name, kind=kind, process=process, enabled=True)
     return Candidate(name=name, kind=kind, process=process)
@@ -162,18 +155,8 @@ class CandidatesPage(QWidget):
         super().__init__(parent)
         self._c = controller
         self.model = CollectionTableModel(controller, "candidates", Candidate, candidate_columns())
-        self.table = QTableView(self)
-        self.table.setObjectName("CandidateTable")
-        self.table.setModel(self.model)
+        self.table = editable_table_view(self.model, "CandidateTable", parent=self)
         self.table.setItemDelegate(FieldDelegate(self.table))
-        self.table.setSelectionBehavior(QAbstractItemView.SelectionBehavior.SelectRows)
-        self.table.setSelectionMode(QAbstractItemView.SelectionMode.SingleSelection)
-        self.table.setEditTriggers(
-            QAbstractItemView.EditTrigger.DoubleClicked
-            | QAbstractItemView.EditTrigger.EditKeyPressed
-            | QAbstractItemView.EditTrigger.AnyKeyPressed
-        )
-        self.table.verticalHeader().setVisible(False)
         hh = self.table.horizontalHeader()
         hh.setSectionResizeMode(QHeaderView.ResizeMode.ResizeToContents)
         hh.setSectionResizeMode(0, QHeaderView.ResizeMode.Stretch)
@@ -268,10 +251,7 @@ class CandidatesPage(QWidget):
         study = self._c.study
         item = study.candidates[row]
         taken = {c.name for c in study.candidates}
-        name, k = f"{item.name} copy", 2
-        while name in taken:
-            name, k = f"{item.name} copy {k}", k + 1
-        copy = dataclasses.replace(item, name=name)
+        copy = dataclasses.replace(item, name=unique_name(f"{item.name} copy", taken))
         return self._c.submit(InsertItem("candidates", row + 1, copy, f"Duplicate {item.name}"))
 
     def remove_selected(self) -> bool:

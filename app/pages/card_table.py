@@ -38,7 +38,6 @@ __all__ = [
     "CardTableDelegate",
     "card_derivations",
     "rename_card_edit",
-    "unique_name",
 ]
 
 Index = QModelIndex | QPersistentModelIndex
@@ -89,16 +88,6 @@ _PAGE_NOTES = {
     "technology": "Informational; the figures below drive the estimate.",
 }
 _CRIPPS = "S. C. Cripps, RF Power Amplifiers for Wireless Communications, 2nd ed., 2006, ch. 2"
-
-
-def unique_name(name: str, taken: set[str]) -> str:
-    """``name``, or ``name (2)``, ``name (3)``… — the first not in ``taken``."""
-    if name not in taken:
-        return name
-    k = 2
-    while f"{name} ({k})" in taken:
-        k += 1
-    return f"{name} ({k})"
 
 
 def rename_card_edit(study: Study, index: int, new_name: str) -> Compound:

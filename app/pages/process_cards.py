@@ -13,7 +13,6 @@ import dataclasses
 
 from PySide6.QtCore import QModelIndex, Qt, QTimer
 from PySide6.QtWidgets import (
-    QAbstractItemView,
     QGridLayout,
     QHBoxLayout,
     QHeaderView,
@@ -24,14 +23,14 @@ from PySide6.QtWidgets import (
     QMenu,
     QPushButton,
     QSplitter,
-    QTableView,
     QVBoxLayout,
     QWidget,
 )
 
 from app.controller import StudyController
-from app.pages.card_table import CardParameterTableModel, CardTableDelegate, unique_name
-from core.edits import InsertItem, RemoveItem, format_path
+from app.pages.card_table import CardParameterTableModel, CardTableDelegate
+from app.tables import editable_table_view
+from core.edits import InsertItem, RemoveItem, format_path, unique_name
 from core.process import DEFAULT_CARDS, ProcessCard
 from core.schema import field_spec
 
@@ -90,18 +89,8 @@ class ProcessCardsPage(QWidget):
         self.card_heading.setObjectName("ProcessCardHeading")
         self.card_heading.setWordWrap(True)
         self.model = CardParameterTableModel(controller)
-        self.table = QTableView()
-        self.table.setObjectName("ProcessCardTable")
-        self.table.setModel(self.model)
+        self.table = editable_table_view(self.model, "ProcessCardTable")
         self.table.setItemDelegate(CardTableDelegate(self.table))
-        self.table.setSelectionBehavior(QAbstractItemView.SelectionBehavior.SelectRows)
-        self.table.setSelectionMode(QAbstractItemView.SelectionMode.SingleSelection)
-        self.table.setEditTriggers(
-            QAbstractItemView.EditTrigger.DoubleClicked
-            | QAbstractItemView.EditTrigger.EditKeyPressed
-            | QAbstractItemView.EditTrigger.AnyKeyPressed
-        )
-        self.table.verticalHeader().setVisible(False)
         self.table.setWordWrap(True)
         hh = self.table.horizontalHeader()
         hh.setSectionResizeMode(0, QHeaderView.ResizeMode.ResizeToContents)

@@ -95,8 +95,8 @@ _SUMMARY: tuple[tuple[str, str, str, str, float, str, str, str], ...] = (
     (
         "cost",
         "unit_cost_at_design_volume_usd",
-        "Unit cost",
-        "USD",
+        "PA cost",
+        "USD/radio",
         1.0,
         "{:,.2f}",
         "unit_cost",

@@ -17,30 +17,17 @@ from typing import Any
 
 import pandas as pd
 
+from core.evaluation import CURVE_COLUMNS, SCORECARD_COLUMNS
 from core.export.safe_text import inert_text
 from core.fileio import atomic_write_bytes
 
 __all__ = [
-    "CURVE_COLUMNS",
-    "SCORECARD_COLUMNS",
     "scorecard_tsv",
     "write_curves_csv",
     "write_scorecard_csv",
 ]
 
-#: Columns of ``Evaluation.scorecard``, in file order.
-SCORECARD_COLUMNS = (
-    "candidate",
-    "band",
-    "metric",
-    "unit",
-    "estimate",
-    "target",
-    "margin",
-    "status",
-)
-#: Columns of ``Evaluation.curves``, in file order.
-CURVE_COLUMNS = ("candidate", "band", "f_hz", "gain_db", "p1db_dbm", "pae_pct")
+# The CSV files keep the Evaluation's own column order (core.evaluation).
 
 
 def _frame(evaluation: Any, attr: str, columns: tuple[str, ...]) -> pd.DataFrame:

@@ -259,17 +259,17 @@ def _per_candidate(
     out: list[tuple[str, str, dict[str, Any]]] = []
     summary = getattr(ev, "summary", None)
     wanted = (
-        ("die_area_mm2", "Die area (mm²)", "0.00"),
-        ("dc_power_w", "DC power per PA (W)", "0.000"),
-        ("array_dc_power_w", "Array DC power (W)", "0.00"),
+        ("die_area_mm2", "Largest die (mm²)", "0.00"),
+        ("dc_power_w", "DC power per PA at P1dB (W)", "0.000"),
+        ("array_dc_power_w", "Array DC power at P1dB (W)", "0.00"),
     )
     frames: list[tuple[pd.DataFrame, tuple]] = []
     if isinstance(summary, pd.DataFrame):
         frames.append((summary, wanted))
     per = getattr(cost, "per_candidate", None) if cost is not None else None
     cost_cols = (
-        ("unit_cost_at_design_volume_usd", "Unit cost at design volume (USD)", "#,##0.00"),
-        ("recurring_usd", "Recurring cost (USD)", "#,##0.00"),
+        ("unit_cost_at_design_volume_usd", "PA cost per radio at design volume (USD)", "#,##0.00"),
+        ("recurring_usd", "Recurring PA cost per element (USD)", "#,##0.00"),
         ("nre_usd", "NRE (USD)", "#,##0"),
     )
     if isinstance(per, pd.DataFrame):

@@ -200,9 +200,9 @@ def test_add_without_cards_is_refused(qtbot, qapp):
 
 
 def test_new_candidate_names_are_unique():
-    taken = {"Wideband PA", "Wideband PA 2"}
+    taken = {"Wideband PA", "Wideband PA (2)"}
     cand = new_candidate(CandidateKind.WIDEBAND, taken, GAAS)
-    assert cand.name == "Wideband PA 3" and cand.process == GAAS
+    assert cand.name == "Wideband PA (3)" and cand.process == GAAS
 
 
 def test_card_rename_on_the_cards_page_shows_in_the_candidates_table(page, controller, qtbot):

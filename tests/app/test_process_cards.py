@@ -16,9 +16,9 @@ from app.pages.card_table import (
     CardParameterTableModel,
     card_derivations,
     rename_card_edit,
-    unique_name,
 )
 from app.pages.process_cards import ProcessCardsPage
+from core.edits import unique_name
 from core.evaluation import Derivation
 from core.process import DEFAULT_CARDS, ProcessCard, Technology
 from core.resources import demo_path
