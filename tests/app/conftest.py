@@ -12,6 +12,16 @@ from core.study import load_study
 
 
 @pytest.fixture
+def controller(qapp):
+    """A StudyController on the built-in demo study, without a window."""
+    from app.controller import StudyController
+
+    c = StudyController(load_study(demo_path()))
+    yield c
+    c.deleteLater()
+
+
+@pytest.fixture
 def settings_isolated(tmp_path):
     QSettings.setDefaultFormat(QSettings.Format.IniFormat)
     QSettings.setPath(QSettings.Format.IniFormat, QSettings.Scope.UserScope, str(tmp_path / "ini"))

@@ -20,13 +20,6 @@ SIGE = "SiGe BiCMOS HBT 0.13 µm"
 
 
 @pytest.fixture
-def controller(qapp):
-    c = StudyController(load_study(demo_path()))
-    yield c
-    c.deleteLater()
-
-
-@pytest.fixture
 def page(qtbot, controller):
     p = CandidatesPage(controller)
     qtbot.addWidget(p)

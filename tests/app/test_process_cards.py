@@ -31,13 +31,6 @@ GAN = "GaN-on-SiC HEMT 0.15 µm"
 
 
 @pytest.fixture
-def controller(qapp):
-    c = StudyController(load_study(demo_path()))
-    yield c
-    c.deleteLater()
-
-
-@pytest.fixture
 def page(qtbot, controller):
     p = ProcessCardsPage(controller)
     qtbot.addWidget(p)
