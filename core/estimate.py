@@ -297,6 +297,7 @@ def _findings(ss: SolvedStudy) -> list[Finding]:
     out: list[Finding] = []
     p = ss.plan
     b = p.batch
+    switched = {c.name for c in ss.study.candidates if c.kind == CandidateKind.SWITCHED}
     for r in range(p.n_rows):
         g = b.group[r]
 
@@ -357,13 +358,13 @@ def _findings(ss: SolvedStudy) -> list[Finding]:
                     f"margin within {b.max_stages[r]} stages of {b.stage_gain_db[r]:.1f} dB.",
                 )
         excess = ss.gain_db[r] - p.gain_target_db[r]
-        if excess > _EXCESS_GAIN_DB and len(members) > 1:
+        if excess > _EXCESS_GAIN_DB and str(ss.cand_name[r]) in switched:
             add(
                 "info",
-                f"Gain is {excess:.0f} dB above the target here: the shared design's stage "
-                "count is set by its highest band. In practice surplus stages are bypassed or "
-                "biased down in this state; the PAE shown still pays for driving them, and "
-                "stability needs checking.",
+                f"Gain is {excess:.0f} dB above the target in this state: the switched "
+                "design's stage count is set by its highest band. In practice surplus stages "
+                "are bypassed or biased down here; the PAE shown still pays for driving them, "
+                "and stability needs checking.",
             )
         head = float(ss.headroom_db[r].min())
         if head < 0.0:
