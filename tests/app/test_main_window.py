@@ -137,3 +137,21 @@ def test_rename_study_updates_title_and_undoes(make_window):
     page.name_edit.editingFinished.emit()
     assert w.controller.study.name.strip()
     assert any(p.path == "name" for p in w.notices.problems)
+
+
+def test_save_as_adds_to_open_recent_and_reopens(make_window, tmp_path, monkeypatch):
+    from PySide6.QtWidgets import QFileDialog
+
+    w = make_window()
+    target = tmp_path / "quay"
+    monkeypatch.setattr(QFileDialog, "getSaveFileName", lambda *a, **k: (str(target), ""))
+    assert w.file_save_as()
+    saved = tmp_path / "quay.json"  # the .json suffix is added
+    assert saved.exists() and w.controller.path == saved
+    assert w.recent_files()[0] == str(saved.resolve())
+    assert w.recent_menu.actions()[0].text() == str(saved.resolve())
+    w.file_new()
+    assert w.controller.path is None
+    w.recent_menu.actions()[0].trigger()
+    assert w.controller.path == saved.resolve() or w.controller.path == saved
+    assert w.controller.study == load_study(saved)
