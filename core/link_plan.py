@@ -356,7 +356,7 @@ def array_plan(study: Study, n_values: ArrayLike | None = None) -> pd.DataFrame:
         needs.append(sweep["p1db_elem_dbm"].to_numpy(dtype=np.float64))
     need_all = np.stack(needs)
     est = _sweep_p1db_per_band(study, need_all)
-    frames = []
+    cols: dict[str, list[np.ndarray]] = {c: [] for c in PLAN_COLUMNS}
     for b_i, band in enumerate(study.bands):
         need = need_all[b_i]
         for r in np.flatnonzero(est["band"] == band.name):
@@ -364,26 +364,25 @@ def array_plan(study: Study, n_values: ArrayLike | None = None) -> pd.DataFrame:
             if not np.array_equal(est["p1db_target_dbm"][r], need):
                 raise ValueError(f"sweep_p1db: rows for {candidate!r} do not match the targets")
             feasible = est["feasible"][r]
-            dc = est["dc_power_w"][r]
             per_pa = _pa_recurring_usd(study, candidate, est["die_area_mm2"][r])
-            frames.append(
-                pd.DataFrame(
-                    {
-                        "band": band.name,
-                        "candidate": candidate,
-                        "n_elements": n,
-                        "p1db_elem_dbm": need,
-                        "feasible": feasible,
-                        "reason": est["reason"][r].astype(str),
-                        "pa_count": n,
-                        "array_dc_power_w": np.where(feasible, n * dc, np.nan),
-                        "array_pa_cost_usd": np.where(feasible, n * per_pa, np.nan),
-                    }
-                )
-            )
-    if not frames:
+            part = {
+                "band": np.full(n.shape, band.name, dtype=object),
+                "candidate": np.full(n.shape, candidate, dtype=object),
+                "n_elements": n,
+                "p1db_elem_dbm": need,
+                "feasible": feasible,
+                "reason": est["reason"][r].astype(str).astype(object),
+                "pa_count": n,
+                "array_dc_power_w": np.where(feasible, n * est["dc_power_w"][r], np.nan),
+                "array_pa_cost_usd": np.where(feasible, n * per_pa, np.nan),
+            }
+            for c in PLAN_COLUMNS:
+                cols[c].append(part[c])
+    if not cols["band"]:
         return pd.DataFrame({c: [] for c in PLAN_COLUMNS})
-    return pd.concat(frames, ignore_index=True)
+    # One frame from whole columns: building a frame per (band, candidate) and concatenating
+    # them costs more than the estimator's separate-row solve.
+    return pd.DataFrame({c: np.concatenate(v) for c, v in cols.items()})
 
 
 def _pa_recurring_usd(study: Study, candidate: str, die_area_mm2: np.ndarray) -> np.ndarray:

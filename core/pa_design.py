@@ -283,37 +283,45 @@ def _pass(b: DesignBatch, c: dict[str, F64], w_g: F64, req_db: F64) -> dict:
     # network, mismatch, combiner, band-select and driver compression (counted wherever the
     # design can have drivers). Rows without a request (sweep) do not vote.
     comb_all = levels[:, g][:, pr] * c["l_p"]  # the combiner is not retuned: passive Q
-    need = pts.seg_max(c["net"] + ml + comb_all) + (c["port"] + req_db)[..., None]
+    tot = c["net"] + ml + comb_all
+    seg_worst = pts.seg_max(tot)  # (K, R, S)
+    need = seg_worst + (c["port"] + req_db)[..., None]
     s_g = np.maximum.reduceat(need, b.starts, axis=1).argmin(axis=-1)  # fewest on ties
     ch = ChosenPoints(pts, c["seg0"] + s_g[:, g])
-    v, ml = ch.take(v), ch.take(ml)
-    net, comb = ch.take(c["net"]), ch.take(comb_all)
-    out = net + ml + comb
-    n_st, found = _stage_rule(b, c, ch.row_max(out))
+    st = {"ml": ch.take(ml)}
+    if ch.uniform is None:
+        # Ragged points keep every segment: the chosen losses are ``tot`` itself and their
+        # row maxima are the segment maxima already taken at the chosen section count.
+        out = tot
+        out_max = np.take_along_axis(seg_worst, s_g[:, g][..., None], axis=2)[..., 0]
+    else:
+        st.update(v=ch.take(v), net=ch.take(c["net"]), comb=ch.take(comb_all))
+        out = st["net"] + st["ml"] + st["comb"]
+        out_max = ch.row_max(out)
+    n_st, found = _stage_rule(b, c, out_max)
     # Last driver at the output stage's P1dB: it must deliver P1dB/(G − 1 dB) through one
     # interstage network, with 1/drive_ratio of the output periphery.
     head = np.where(n_st[:, g] >= 2, c["head"][None, :], np.inf)
     deficit = np.maximum(0.0, -head)
-    loss = out + b.band_select_db[ch.row] + deficit[:, ch.row]
-    return {
-        "w_eff": w_eff,
-        "n_need": n_need,
-        "n_cells": n_cells,
-        "levels": levels,
-        "ratio": ratio,
-        "s_g": s_g,
-        "ch": ch,
-        "v": v,
-        "ml": ml,
-        "net": net,
-        "comb": comb,
-        "n_st": n_st,
-        "found": found,
-        "head": head,
-        "deficit": deficit,
-        "loss": loss,
-        "worst_loss": ch.row_max(loss),
-    }
+    # Row constants added after the maximum: rounding is monotone, so this is the maximum of
+    # the per-point loss out + band select + deficit (formed in full by _finish).
+    worst_loss = out_max + b.band_select_db[None, :] + deficit
+    st.update(
+        w_eff=w_eff,
+        n_need=n_need,
+        n_cells=n_cells,
+        levels=levels,
+        ratio=ratio,
+        s_g=s_g,
+        ch=ch,
+        out=out,
+        n_st=n_st,
+        found=found,
+        head=head,
+        deficit=deficit,
+        worst_loss=worst_loss,
+    )
+    return st
 
 
 def _required(b: DesignBatch, st: dict, p_req_w: F64) -> F64:
@@ -443,7 +451,7 @@ def _slice(st: dict, keep: NDArray[np.bool_]) -> dict:
     return out
 
 
-def solve(b: DesignBatch, p_req_w: F64) -> Solution:
+def solve(b: DesignBatch, p_req_w: F64, w_floor: F64 | None = None) -> Solution:
     """Size and evaluate every design of ``b`` for the RF-port P1dB requests ``p_req_w``.
 
     Parameters
@@ -453,6 +461,9 @@ def solve(b: DesignBatch, p_req_w: F64) -> Solution:
     p_req_w : ndarray, (K, R)
         Required worst in-band P1dB at each row's RF port, target plus design margin (W). A
         zero leaves the row unconstrained (its design is sized by the other rows).
+    w_floor : ndarray, (K, G), optional
+        A proven lower bound of each design's periphery (mm), e.g. the solution of a request
+        no larger (a warm start); the search starts at the larger of it and its own bound.
 
     Returns
     -------
@@ -505,13 +516,21 @@ def solve(b: DesignBatch, p_req_w: F64) -> Solution:
     may_drive = np.where(b.stages_fixed > 0, b.stages_fixed, b.max_stages) >= 2
     c["port"] = b.band_select_db + np.where(may_drive, np.maximum(0.0, -c["head"]), 0.0)
     w_first = initial_periphery(b, p_req_w, c)
+    if w_floor is not None:
+        w_first = np.maximum(w_first, w_floor)
     w_peak, st, passes = _least_feasible(b, c, p_req_w, w_first)
     return _finish(b, c, st, w_first, w_peak, passes)
 
 
 def _finish(b: DesignBatch, c: dict, st: dict, w_first: F64, w_peak: F64, passes: int) -> Solution:
-    ch: ChosenPoints = st["ch"]
+    ch = st["ch"]
     g = b.group
+    if ch.uniform is None:  # ragged points: only the chosen segments, padded (exact)
+        pc = ch.padded()
+        st["ml"], st["out"] = pc.take(st["ml"]), pc.take(st["out"])
+        st["net"] = pc.take(c["net"])
+        st["comb"] = st["levels"][:, g][:, pc.row] * pc.take(c["l_p"])
+        ch = pc  # same interface, fewer points
     n_sec_g = (st["s_g"] + 1).astype(np.int64)
     nst_r = st["n_st"][:, g]
     w_r = st["w_eff"][:, g]
@@ -525,8 +544,9 @@ def _finish(b: DesignBatch, c: dict, st: dict, w_first: F64, w_peak: F64, passes
     dc_out = p_dev / b.eta[None, :]
     dc_drv = (b.vdd_v * b.driver_bias * b.i_max_a_per_mm)[None, :] * w_drv
     nst_q = nst_r[:, ch.row].astype(float)
+    loss = st["out"] + b.band_select_db[ch.row] + st["deficit"][:, ch.row]
     gain = nst_q * (b.stage_gain_db - c["is_db"])[ch.row] - st["net"] - st["ml"] - st["comb"]
-    p1db = np.asarray(rf.w_to_dbm(p_dev))[:, ch.row] - st["loss"]
+    p1db = np.asarray(rf.w_to_dbm(p_dev))[:, ch.row] - loss
     p_out = np.asarray(rf.dbm_to_w(p1db))
     p_in = p_out * 10.0 ** (-(gain - 1.0) / 10.0)
     pae = (p_out - p_in) / (dc_out + dc_drv)[:, ch.row]
@@ -550,7 +570,7 @@ def _finish(b: DesignBatch, c: dict, st: dict, w_first: F64, w_peak: F64, passes
             "combiner_db": st["comb"],
             "headroom_db": st["head"][:, ch.row],
             "deficit_db": st["deficit"][:, ch.row],
-            "p1db_loss_db": st["loss"],
+            "p1db_loss_db": loss,
             "gain_db": gain,
             "p1db_dbm": p1db,
             "pae": pae,

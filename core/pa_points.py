@@ -16,7 +16,7 @@ from numpy.typing import NDArray
 
 from core import rf
 
-__all__ = ["ChosenPoints", "Points", "point_coordinates", "prune"]
+__all__ = ["ChosenPoints", "PaddedPoints", "Points", "point_coordinates", "prune"]
 
 F64 = NDArray[np.float64]
 
@@ -104,6 +104,11 @@ class ChosenPoints:
             self.row = np.repeat(np.arange(self.r_n), pts.uniform)
         else:
             self.row = pts.row
+            self.ends = np.append(pts.seg_starts[1:], pts.n_points)
+
+    def padded(self) -> PaddedPoints:
+        """The chosen segments of ragged points alone (see :class:`PaddedPoints`)."""
+        return PaddedPoints(self.starts[self.seg], self.ends[self.seg])
 
     def take(self, x: F64) -> F64:
         """(Q,) or (K, Q) point values → the chosen points, (K, P′)."""
@@ -131,6 +136,39 @@ class ChosenPoints:
         if self.uniform is not None:
             return x.reshape(self.k_n, self.r_n, self.uniform).min(axis=2)
         return np.minimum.reduceat(x, self.starts, axis=1)[self.k_idx, self.seg]
+
+
+class PaddedPoints:
+    """The chosen segment of every (sample, row) of ragged points, padded to a fixed width.
+
+    Row r gets the width L_r of its longest chosen segment over the samples; a shorter
+    segment repeats its last point, which leaves every maximum and minimum unchanged. Values
+    then take (K, ΣL_r) and reduce over fixed blocks, instead of every segment's points.
+    """
+
+    uniform = None
+
+    def __init__(self, first: NDArray[np.int64], end: NDArray[np.int64]) -> None:
+        self.k_n, self.r_n = first.shape
+        length = end - first
+        width = length.max(axis=0)
+        self.row = np.repeat(np.arange(self.r_n), width)
+        offset = np.arange(self.row.size) - np.repeat(np.cumsum(width) - width, width)
+        self.idx = first[:, self.row] + np.minimum(offset[None, :], length[:, self.row] - 1)
+        self.k_idx = np.arange(self.k_n)[:, None]
+        self.starts = np.cumsum(width) - width
+
+    def take(self, x: F64) -> F64:
+        """(Q,) or (K, Q) point values → the chosen points, (K, ΣL_r)."""
+        return x[self.idx] if x.ndim == 1 else x[self.k_idx, self.idx]
+
+    def row_max(self, x: F64) -> F64:
+        """Max over each row's chosen points of (K, ΣL_r) values → (K, R)."""
+        return np.maximum.reduceat(x, self.starts, axis=1)
+
+    def row_min(self, x: F64) -> F64:
+        """Min over each row's chosen points of (K, ΣL_r) values → (K, R)."""
+        return np.minimum.reduceat(x, self.starts, axis=1)
 
 
 def point_coordinates(q_u: F64, q_sw: F64, pts: Points, f0_hz: F64, bw_frac: F64):
