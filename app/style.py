@@ -6,9 +6,10 @@ status colours are chosen from it too and always come with a symbol and a word.
 
 from __future__ import annotations
 
+import pyqtgraph as pg
 from PySide6.QtGui import QColor
 
-__all__ = ["STATUS_STYLE", "candidate_color", "status_color"]
+__all__ = ["STATUS_STYLE", "candidate_color", "status_color", "style_plot"]
 
 # Okabe–Ito order, black last (reserved for targets and masks).
 _OKABE_ITO = ("#0072B2", "#E69F00", "#009E73", "#CC79A7", "#56B4E9", "#D55E00", "#F0E442")
@@ -29,3 +30,22 @@ def candidate_color(index: int) -> QColor:
 
 def status_color(status: str) -> QColor:
     return QColor(STATUS_STYLE.get(status, ("", "", "#ffffff"))[2])
+
+
+def style_plot(
+    plot: pg.PlotItem, left: str, *, bottom: str = "", grid: bool = True, left_width: int = 70
+) -> pg.PlotItem:
+    """The house look of a plot: no context menu, dark-grey axes, labelled axes, light grid."""
+    plot.setMenuEnabled(False)
+    plot.hideButtons()
+    if grid:
+        plot.showGrid(x=True, y=True, alpha=0.2)
+    plot.setLabel("left", left)
+    if bottom:
+        plot.setLabel("bottom", bottom)
+    for name in ("left", "bottom"):
+        axis = plot.getAxis(name)
+        axis.setPen(pg.mkPen("#404040"))
+        axis.setTextPen(pg.mkPen("#202020"))
+    plot.getAxis("left").setWidth(left_width)
+    return plot

@@ -19,7 +19,7 @@ from PySide6.QtGui import QColor
 from PySide6.QtWidgets import QComboBox, QHBoxLayout, QLabel, QVBoxLayout, QWidget
 
 from app.controller import StudyController
-from app.style import candidate_color
+from app.style import candidate_color, style_plot
 from core.link_plan import array_optimum, array_plan
 
 __all__ = ["ArraySizingPage"]
@@ -34,18 +34,6 @@ def _pen(colour: QColor, width: float = 2.0, dashed: bool = False) -> Any:
     if dashed:
         pen.setStyle(Qt.PenStyle.DashLine)
     return pen
-
-
-def _style_plot(plot: pg.PlotItem, left: str) -> None:
-    plot.setMenuEnabled(False)
-    plot.hideButtons()
-    plot.showGrid(x=True, y=True, alpha=0.2)
-    plot.setLabel("left", left)
-    for name in ("left", "bottom"):
-        axis = plot.getAxis(name)
-        axis.setPen(pg.mkPen("#404040"))
-        axis.setTextPen(pg.mkPen("#202020"))
-    plot.getAxis("left").setWidth(78)
 
 
 def _runs(mask: np.ndarray) -> list[tuple[int, int]]:
@@ -101,13 +89,13 @@ class ArraySizingPage(QWidget):
         self.graphics.setObjectName("ArrayPlots")
         self.graphics.setBackground("w")
         self.p1db_plot = self.graphics.addPlot(row=0, col=0)
-        _style_plot(self.p1db_plot, "P1dB (dBm)")
+        style_plot(self.p1db_plot, "P1dB (dBm)")
         self.dc_plot = self.graphics.addPlot(row=1, col=0)
-        _style_plot(self.dc_plot, "DC power (W)")
+        style_plot(self.dc_plot, "DC power (W)")
         self.cost_plot = self.graphics.addPlot(row=2, col=0)
-        _style_plot(self.cost_plot, "PA cost (USD)")
+        style_plot(self.cost_plot, "PA cost (USD)")
         self.feas_plot = self.graphics.addPlot(row=3, col=0)
-        _style_plot(self.feas_plot, "Reachable")
+        style_plot(self.feas_plot, "Reachable")
         self.feas_plot.setLabel("bottom", "Array elements N (log scale)")
         self.feas_plot.showGrid(x=True, y=False, alpha=0.2)
         self.graphics.ci.layout.setRowStretchFactor(0, 3)

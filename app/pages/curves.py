@@ -30,7 +30,7 @@ from PySide6.QtWidgets import (
 
 from app.controller import StudyController
 from app.plot_export import export_plot
-from app.style import candidate_color
+from app.style import candidate_color, style_plot
 
 __all__ = ["METRIC_AXES", "CurvesPage"]
 
@@ -100,16 +100,7 @@ class CurvesPage(QWidget):
         self._markers: dict[str, pg.ScatterPlotItem] = {}
         first: pg.PlotItem | None = None
         for row, (metric, _col, _t, label, _u) in enumerate(METRIC_AXES):
-            plot = self.graphics.addPlot(row=row, col=0)
-            plot.setMenuEnabled(False)
-            plot.hideButtons()
-            plot.showGrid(x=True, y=True, alpha=0.2)
-            plot.setLabel("left", label)
-            for name in ("left", "bottom"):
-                axis = plot.getAxis(name)
-                axis.setPen(pg.mkPen("#404040"))
-                axis.setTextPen(pg.mkPen("#202020"))
-            plot.getAxis("left").setWidth(64)
+            plot = style_plot(self.graphics.addPlot(row=row, col=0), label, left_width=64)
             if first is None:
                 first = plot
             else:

@@ -42,7 +42,7 @@ from PySide6.QtWidgets import (
 )
 
 from app.controller import StudyController
-from app.style import candidate_color
+from app.style import candidate_color, style_plot
 from app.tables import OPTIONS_ROLE, FieldDelegate, parse_cell
 from core.costing import AREA_PARTS, CostResult, area_breakdown, cost_study, weighted_scores
 from core.edits import format_path, get_in
@@ -445,16 +445,7 @@ class DieCostPage(QWidget):
     # -- construction helpers --------------------------------------------------------------
     def _plot(self, row: int, col: int, left: str, bottom: str) -> pg.PlotItem:
         plot = self.graphics.addPlot(row=row, col=col)
-        plot.setMenuEnabled(False)
-        plot.hideButtons()
-        plot.setLabel("left", left)
-        plot.setLabel("bottom", bottom)
-        for name in ("left", "bottom"):
-            axis = plot.getAxis(name)
-            axis.setPen(pg.mkPen("#404040"))
-            axis.setTextPen(pg.mkPen("#202020"))
-        plot.getAxis("left").setWidth(62)
-        return plot
+        return style_plot(plot, left, bottom=bottom, grid=False, left_width=62)
 
     @staticmethod
     def _bars(plot: pg.PlotItem, colours: tuple[str, ...]) -> list[pg.BarGraphItem]:
