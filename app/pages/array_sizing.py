@@ -323,7 +323,8 @@ class ArraySizingPage(QWidget):
         for v in vb:
             v.enableAutoRange(axis=pg.ViewBox.YAxis)
         # The N axis spans the sweep exactly; labels and markers must not widen it.
-        self.p1db_plot.setXRange(0.0, np.log10(max(n_max, 2.0)), padding=0.02)
+        # A little room each side so the first and last tick labels (1, 1024) are drawn.
+        self.p1db_plot.setXRange(-0.06, np.log10(max(n_max, 2.0)) + 0.12, padding=0.0)
         self.feas_plot.setYRange(-0.7, max(len(ticks), 1) - 0.3, padding=0)
         self.feas_plot.getAxis("left").setWidth(185)
         for plot in (self.p1db_plot, self.dc_plot, self.cost_plot):
@@ -332,11 +333,12 @@ class ArraySizingPage(QWidget):
     @staticmethod
     def _optima_text(rows: pd.DataFrame) -> str:
         parts = []
+        falling = []  # candidates whose lowest array DC is at the end of the sweep
         for candidate, r in rows.groupby("candidate", sort=False):
             cheap = r[r["cheapest"]] if "cheapest" in r.columns else r.iloc[0:0]
             low = r[r["lowest_dc_power"]]
             if cheap.empty and low.empty:
-                parts.append(f"{candidate}: no reachable N")
+                parts.append(f"<b>{candidate}</b>: no reachable N")
                 continue
             bits = []
             if not cheap.empty:
@@ -347,14 +349,18 @@ class ArraySizingPage(QWidget):
             if not low.empty:
                 d = low.iloc[0]
                 if int(d["n_elements"]) == int(r["n_elements"].max()):
-                    # Array DC ∝ N·P_elem ∝ 1/N with no per-element overhead in the model.
-                    bits.append(f"DC keeps falling to N = {int(d['n_elements'])}")
+                    falling.append(candidate)  # DC ∝ N·P_elem ∝ 1/N: no per-element overhead
                 else:
                     bits.append(
                         f"lowest DC N = {int(d['n_elements'])} ({d['array_dc_power_w']:.3g} W)"
                     )
             parts.append(f"<b>{candidate}</b>: " + ", ".join(bits))
-        return "★ " + " · ".join(parts)
+        text = "★ " + " · ".join(parts)
+        if falling:
+            n_max = int(rows["n_elements"].max())
+            who = "every candidate" if len(falling) == len(parts) else ", ".join(falling)
+            text += f". Array DC power keeps falling up to N = {n_max} for {who}."
+        return text
 
     # -- hover ----------------------------------------------------------------------------
     def readout_at(self, n_elements: int) -> str:
