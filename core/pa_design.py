@@ -53,7 +53,7 @@ from core import rf
 from core.pa_model import LOAD_OHM, DesignBatch, Solution, chebyshev_scale
 from core.pa_points import ChosenPoints, point_coordinates, prune
 
-__all__ = ["convex_at_start", "convexity_holds", "prune_points", "solve"]
+__all__ = ["prepare", "prune_points", "solve"]
 
 #: Iteration cap of the periphery search (it needs 3–8 passes; the cap is a safety net).
 _MAX_PASSES = 40
@@ -158,37 +158,30 @@ def _interstage(b: DesignBatch, c: dict[str, F64]) -> tuple[F64, INT]:
     return worst[np.arange(b.n_rows), n_is[b.group]], (n_is + 1).astype(np.int64)
 
 
-def prune_points(
-    b: DesignBatch, a_max: float | None = None
-) -> tuple[DesignBatch, NDArray[np.bool_]]:
-    """The batch on the worst-case points only (:func:`core.pa_points.prune`).
+def prune_points(b: DesignBatch) -> DesignBatch:
+    """The batch on the worst-case points only (:func:`core.pa_points.prune`), exact for
+    every request, with the interstage networks taken from the full grid.
 
     Parameters
     ----------
     b : DesignBatch
         A batch on the uniform grid.
-    a_max : float, optional
-        Passed to :func:`core.pa_points.prune`: ``np.inf`` gives a pruning that is exact for
-        every request (no convexity check needed), None the smallest point sets.
 
     Returns
     -------
-    pruned : DesignBatch
-    convex_rows : ndarray of bool, (R,)
-        Rows whose pruning assumed a convex mismatch term; check with :func:`convexity_holds`.
+    DesignBatch
     """
     c = _constants(b)
-    pts, convex_rows = prune(b.points, c["l_p"], c["l_sw"], c["h"], a_max)
+    pts = prune(b.points, c["l_p"], c["l_sw"], c["h"])
     is_db, is_sec = _interstage(b, c)
     pruned = b.with_points(pts)
-    pruned = DesignBatch(
+    return DesignBatch(
         **{
             **{f: getattr(pruned, f) for f in pruned.__dataclass_fields__},
             "interstage_db": is_db,
             "interstage_sections": is_sec,
         }
     )
-    return pruned, convex_rows
 
 
 def initial_periphery(b: DesignBatch, p_req_w: F64, c: dict[str, F64]) -> F64:
@@ -203,39 +196,6 @@ def initial_periphery(b: DesignBatch, p_req_w: F64, c: dict[str, F64]) -> F64:
     l_min = b.points.seg_max(c["net"]).min(axis=-1) + b.band_select_db
     w0 = p_req_w / (b.p1db_w_per_mm * 10.0 ** (-l_min / 10.0))[None, :]
     return np.maximum(np.maximum.reduceat(w0, b.starts, axis=1), 1e-9)
-
-
-def convexity_holds(b: DesignBatch, sol: Solution, rows: NDArray[np.bool_]) -> NDArray[np.bool_]:
-    """Whether pruning rule 3 of :func:`core.pa_points.prune` was exact for each sample, (K,).
-
-    Every pass of the iteration is at a W between the first and the largest visited periphery,
-    and the ripple |Γ|m(r) is quasi-convex in log r, so checking every section count at those
-    two covers every pass: |Γ|m ≤ 1/√2 ⇔ a·h_max ≤ 1.
-    """
-    return _convex_at(b, (sol.w_first_mm, sol.w_peak_mm), rows)
-
-
-def convex_at_start(b: DesignBatch, p_req_w: F64, rows: NDArray[np.bool_]) -> NDArray[np.bool_]:
-    """Whether the convexity of :func:`convexity_holds` holds at the first periphery, (K,).
-
-    A sample for which this is False fails :func:`convexity_holds` whatever its later passes,
-    so a caller can send it to an exact pruning at once.
-    """
-    c = _constants(b)
-    return _convex_at(b, (initial_periphery(b, p_req_w, c),), rows)
-
-
-def _convex_at(b: DesignBatch, ws: tuple[F64, ...], rows: NDArray[np.bool_]) -> NDArray[np.bool_]:
-    ok = np.ones(ws[0].shape[0], dtype=bool)
-    if not rows.any():
-        return ok
-    n_sec = np.arange(1, b.max_sections + 1, dtype=float)[None, None, :]
-    cap = (b.max_cells * b.cell_max_mm)[b.starts][None, :]
-    for w in (np.minimum(w, cap) for w in ws):
-        ratio = LOAD_OHM * w[:, b.group][:, rows] / b.ropt_ohm_mm[rows][None, :]
-        gm = rf.chebyshev_max_reflection(ratio[..., None], n_sec, b.bw_frac[rows][None, :, None])
-        ok &= (np.asarray(gm) <= 2.0**-0.5).all(axis=(1, 2))
-    return ok
 
 
 def _stage_rule(b: DesignBatch, c: dict[str, F64], rest: F64) -> tuple[INT, NDArray[np.bool_]]:
@@ -276,27 +236,38 @@ def _pass(b: DesignBatch, c: dict[str, F64], w_g: F64, req_db: F64) -> dict:
     # Exact Chebyshev response v = a(r)·h_N (see chebyshev_scale), floored at the Bode–Fano
     # bound (Pozar §5.9); its mismatch loss is the insertion-loss function 10·log10(1 + v²),
     # equal to −10·log10(1 − |Γ|²) with |Γ|² = v²/(1 + v²) (Pozar §8.3).
-    v = np.maximum(chebyshev_scale(ratio)[:, pr] * c["h"], c["v_bf"])
-    ml = 10.0 * np.log10(1.0 + v * v)
+    # The (K, Q) work is done in place: it is most of a pass.
+    uniform = pts.uniform is not None
+    tot = chebyshev_scale(ratio)[:, pr]
+    tot *= c["h"]
+    np.maximum(tot, c["v_bf"], out=tot)
+    v = tot.copy() if uniform else None
+    np.square(tot, out=tot)
+    tot += 1.0
+    np.log10(tot, out=tot)
+    tot *= 10.0
+    ml = tot.copy() if uniform else None
     # Section count: the N that maximises the worst in-band power delivered to the RF port
     # relative to each row's request — the N needing the smallest output periphery. Losses:
     # network, mismatch, combiner, band-select and driver compression (counted wherever the
     # design can have drivers). Rows without a request (sweep) do not vote.
-    comb_all = levels[:, g][:, pr] * c["l_p"]  # the combiner is not retuned: passive Q
-    tot = c["net"] + ml + comb_all
+    comb_all = levels[:, g][:, pr]
+    comb_all *= c["l_p"]  # the combiner is not retuned: passive Q
+    tot += c["net"]
+    tot += comb_all
     seg_worst = pts.seg_max(tot)  # (K, R, S)
     need = seg_worst + (c["port"] + req_db)[..., None]
     s_g = np.maximum.reduceat(need, b.starts, axis=1).argmin(axis=-1)  # fewest on ties
     ch = ChosenPoints(pts, c["seg0"] + s_g[:, g])
-    st = {"ml": ch.take(ml)}
-    if ch.uniform is None:
+    st: dict = {}
+    if not uniform:
         # Ragged points keep every segment: the chosen losses are ``tot`` itself and their
         # row maxima are the segment maxima already taken at the chosen section count.
         out = tot
         out_max = np.take_along_axis(seg_worst, s_g[:, g][..., None], axis=2)[..., 0]
     else:
         st.update(v=ch.take(v), net=ch.take(c["net"]), comb=ch.take(comb_all))
-        out = st["net"] + st["ml"] + st["comb"]
+        out = st["net"] + ch.take(ml) + st["comb"]
         out_max = ch.row_max(out)
     n_st, found = _stage_rule(b, c, out_max)
     # Last driver at the output stage's P1dB: it must deliver P1dB/(G − 1 dB) through one
@@ -307,6 +278,7 @@ def _pass(b: DesignBatch, c: dict[str, F64], w_g: F64, req_db: F64) -> dict:
     # the per-point loss out + band select + deficit (formed in full by _finish).
     worst_loss = out_max + b.band_select_db[None, :] + deficit
     st.update(
+        w=w_g,
         w_eff=w_eff,
         n_need=n_need,
         n_cells=n_cells,
@@ -315,6 +287,7 @@ def _pass(b: DesignBatch, c: dict[str, F64], w_g: F64, req_db: F64) -> dict:
         s_g=s_g,
         ch=ch,
         out=out,
+        out_max=out_max,
         n_st=n_st,
         found=found,
         head=head,
@@ -364,8 +337,6 @@ def _least_feasible(b: DesignBatch, c: dict, p_req_w: F64, w_first: F64):
 
     Returns
     -------
-    w_peak : ndarray, (K, G)
-        Largest periphery visited.
     st : dict
         The pass at the final periphery of every sample.
     passes : int
@@ -378,7 +349,6 @@ def _least_feasible(b: DesignBatch, c: dict, p_req_w: F64, w_first: F64):
     lo, hi = np.zeros_like(w), np.full_like(w, np.inf)
     f_lo, f_hi = np.zeros_like(w), np.zeros_like(w)
     side = np.zeros_like(w)
-    peak = w.copy()
     prev_lw, prev_lr = np.zeros_like(w), np.zeros_like(w)
     prev_dec = np.full((k_n, 3 * g_n), -1.0)
     active = np.arange(k_n)
@@ -419,12 +389,11 @@ def _least_feasible(b: DesignBatch, c: dict, p_req_w: F64, w_first: F64):
         lo[active], hi[active], f_lo[active], f_hi[active] = lo_a, hi_a, flo, fhi
         side[active] = np.where(feas, 1.0, -1.0)
         w[active] = nxt
-        peak[active] = np.maximum(peak[active], nxt)
         finished = done.all(axis=1)
         if passes >= _MAX_PASSES:  # not seen in practice: settle on the smallest feasible W
             finished[:] = True
         if finished.all() and active.size == k_n and passes < _MAX_PASSES:
-            return peak, st, passes  # that pass was at every sample's final periphery
+            return st, passes  # that pass was at every sample's final periphery
         if finished.any():
             rows = active[finished]
             if passes >= _MAX_PASSES:
@@ -436,7 +405,7 @@ def _least_feasible(b: DesignBatch, c: dict, p_req_w: F64, w_first: F64):
         active = active[~finished]
     assert store is not None
     store["ch"] = ChosenPoints(b.points, store.pop("seg"))
-    return peak, store, passes
+    return store, passes
 
 
 def _slice(st: dict, keep: NDArray[np.bool_]) -> dict:
@@ -449,6 +418,29 @@ def _slice(st: dict, keep: NDArray[np.bool_]) -> dict:
         else:
             out[k] = v[keep] if v.shape[0] == keep.shape[0] else v
     return out
+
+
+def prepare(b: DesignBatch) -> dict[str, F64]:
+    """Everything of a solve that does not depend on the requests (per point, row or design).
+
+    Shared by :func:`solve` and the warm-started sweep (:mod:`core.pa_warm`), which solves
+    several groups of requests on one batch.
+    """
+    c = _constants(b)
+    if b.interstage_db is None or b.interstage_sections is None:
+        c["is_db"], c["is_sec"] = _interstage(b, c)
+    else:
+        c["is_db"], c["is_sec"] = b.interstage_db, b.interstage_sections
+    # Driver headroom: G − 1 dB − 10·log10(drive ratio) − L_is (see _pass).
+    c["head"] = b.stage_gain_db - 1.0 - 10.0 * np.log10(b.drive_ratio) - c["is_db"]
+    c["cell_g"] = b.per_design("cell_max_mm")[None, :]
+    c["max_cells_g"] = b.per_design("max_cells")[None, :]
+    c["seg0"] = np.arange(b.n_rows)[None, :] * b.points.n_sections
+    bf = np.minimum(c["bf"], 1.0 - 1e-12)  # a bound of 1 would mean no match at all
+    c["v_bf"] = (bf / np.sqrt(1.0 - bf**2))[b.points.row]  # |Γ| = v/√(1 + v²)
+    may_drive = np.where(b.stages_fixed > 0, b.stages_fixed, b.max_stages) >= 2
+    c["port"] = b.band_select_db + np.where(may_drive, np.maximum(0.0, -c["head"]), 0.0)
+    return c
 
 
 def solve(b: DesignBatch, p_req_w: F64, w_floor: F64 | None = None) -> Solution:
@@ -501,36 +493,27 @@ def solve(b: DesignBatch, p_req_w: F64, w_floor: F64 | None = None) -> Solution:
         raise ValueError(f"p_req_w: must have shape (K, {b.n_rows}), got {p_req_w.shape}")
     if not np.isfinite(p_req_w).all() or (p_req_w < 0).any():
         raise ValueError("p_req_w: must be finite and non-negative")
-    c = _constants(b)
-    if b.interstage_db is None or b.interstage_sections is None:
-        c["is_db"], c["is_sec"] = _interstage(b, c)
-    else:
-        c["is_db"], c["is_sec"] = b.interstage_db, b.interstage_sections
-    # Driver headroom: G − 1 dB − 10·log10(drive ratio) − L_is (see _pass).
-    c["head"] = b.stage_gain_db - 1.0 - 10.0 * np.log10(b.drive_ratio) - c["is_db"]
-    c["cell_g"] = b.per_design("cell_max_mm")[None, :]
-    c["max_cells_g"] = b.per_design("max_cells")[None, :]
-    c["seg0"] = np.arange(b.n_rows)[None, :] * b.points.n_sections
-    bf = np.minimum(c["bf"], 1.0 - 1e-12)  # a bound of 1 would mean no match at all
-    c["v_bf"] = (bf / np.sqrt(1.0 - bf**2))[b.points.row]  # |Γ| = v/√(1 + v²)
-    may_drive = np.where(b.stages_fixed > 0, b.stages_fixed, b.max_stages) >= 2
-    c["port"] = b.band_select_db + np.where(may_drive, np.maximum(0.0, -c["head"]), 0.0)
+    c = prepare(b)
     w_first = initial_periphery(b, p_req_w, c)
     if w_floor is not None:
         w_first = np.maximum(w_first, w_floor)
-    w_peak, st, passes = _least_feasible(b, c, p_req_w, w_first)
-    return _finish(b, c, st, w_first, w_peak, passes)
+    st, passes = _least_feasible(b, c, p_req_w, w_first)
+    return _finish(b, c, st, passes)
 
 
-def _finish(b: DesignBatch, c: dict, st: dict, w_first: F64, w_peak: F64, passes: int) -> Solution:
-    ch = st["ch"]
+def _finish(b: DesignBatch, c: dict, st: dict, passes: int) -> Solution:
+    """Efficiency, DC power, worst-case figures and (on a uniform grid) per-point curves.
+
+    Every worst-in-band figure follows from the row's largest loss out_max (network +
+    mismatch + combiner, the maximum the pass took), because at one periphery each point's
+    figures are functions of its loss ``out`` alone: gain = n·(G_st − L_is) − out, P1dB =
+    P_dev − out − band select − deficit, and the drive P_in = P_out·10^(−(gain − 1)/10) =
+    P_dev·10^(−(band select + deficit + n·(G_st − L_is) − 1)/10) is the same at every point
+    (P_out and the gain fall together), so PAE = (P_out − P_in)/P_DC falls as out rises. The
+    worst gain, P1dB and PAE are therefore all at the point of largest loss, and no per-point
+    work is needed for them.
+    """
     g = b.group
-    if ch.uniform is None:  # ragged points: only the chosen segments, padded (exact)
-        pc = ch.padded()
-        st["ml"], st["out"] = pc.take(st["ml"]), pc.take(st["out"])
-        st["net"] = pc.take(c["net"])
-        st["comb"] = st["levels"][:, g][:, pc.row] * pc.take(c["l_p"])
-        ch = pc  # same interface, fewer points
     n_sec_g = (st["s_g"] + 1).astype(np.int64)
     nst_r = st["n_st"][:, g]
     w_r = st["w_eff"][:, g]
@@ -543,15 +526,24 @@ def _finish(b: DesignBatch, c: dict, st: dict, w_first: F64, w_peak: F64, passes
     w_drv = w_r * np.where(k[None, None, :] <= nst_r[..., None] - 1, pw, 0.0).sum(axis=-1)
     dc_out = p_dev / b.eta[None, :]
     dc_drv = (b.vdd_v * b.driver_bias * b.i_max_a_per_mm)[None, :] * w_drv
-    nst_q = nst_r[:, ch.row].astype(float)
-    loss = st["out"] + b.band_select_db[ch.row] + st["deficit"][:, ch.row]
-    gain = nst_q * (b.stage_gain_db - c["is_db"])[ch.row] - st["net"] - st["ml"] - st["comb"]
-    p1db = np.asarray(rf.w_to_dbm(p_dev))[:, ch.row] - loss
-    p_out = np.asarray(rf.dbm_to_w(p1db))
-    p_in = p_out * 10.0 ** (-(gain - 1.0) / 10.0)
-    pae = (p_out - p_in) / (dc_out + dc_drv)[:, ch.row]
+    dc = dc_out + dc_drv
+    g_n = nst_r.astype(float) * (b.stage_gain_db - c["is_db"])[None, :]
+    p_dev_dbm = np.asarray(rf.w_to_dbm(p_dev))
+    extra = b.band_select_db[None, :] + st["deficit"]
+
+    def figures(out: F64, row: INT) -> tuple[F64, F64, F64]:
+        """Gain, P1dB and PAE at losses ``out`` of points on rows ``row``."""
+        gain = g_n[:, row] - out
+        p1db = p_dev_dbm[:, row] - (out + extra[:, row])
+        p_out = np.asarray(rf.dbm_to_w(p1db))
+        p_in = p_out * 10.0 ** (-(gain - 1.0) / 10.0)
+        return gain, p1db, (p_out - p_in) / dc[:, row]
+
+    worst_gain, worst_p1db, worst_pae = figures(st["out_max"], np.arange(b.n_rows))
     curves = None
+    ch = st["ch"]
     if ch.uniform is not None:
+        gain, p1db, pae = figures(st["out"], ch.row)
         shape = (ch.k_n, ch.r_n, ch.uniform)
         per_point = {
             "f_hz": b.points.f_hz,
@@ -570,7 +562,7 @@ def _finish(b: DesignBatch, c: dict, st: dict, w_first: F64, w_peak: F64, passes
             "combiner_db": st["comb"],
             "headroom_db": st["head"][:, ch.row],
             "deficit_db": st["deficit"][:, ch.row],
-            "p1db_loss_db": loss,
+            "p1db_loss_db": st["out"] + extra[:, ch.row],
             "gain_db": gain,
             "p1db_dbm": p1db,
             "pae": pae,
@@ -594,14 +586,12 @@ def _finish(b: DesignBatch, c: dict, st: dict, w_first: F64, w_peak: F64, passes
         w_drivers_mm=w_drv,
         dc_out_w=dc_out,
         dc_drivers_w=dc_drv,
-        worst_gain_db=ch.row_min(gain),
-        worst_p1db_dbm=ch.row_min(p1db),
-        worst_pae=ch.row_min(pae),
+        worst_gain_db=worst_gain,
+        worst_p1db_dbm=worst_p1db,
+        worst_pae=worst_pae,
         worst_headroom_db=st["head"],
         interstage_db=c["is_db"],
         interstage_sections=c["is_sec"],
         curves=curves,
-        w_first_mm=w_first,
-        w_peak_mm=w_peak,
         passes=passes,
     )

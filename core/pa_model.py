@@ -185,8 +185,6 @@ class Solution:
         ``headroom_db``, ``deficit_db``, ``p1db_loss_db``, ``gain_db``, ``p1db_dbm``, ``pae``.
     interstage_db, interstage_sections
         Worst in-band loss of one input/interstage network (R,) and its sections (G,).
-    w_first_mm, w_peak_mm
-        Periphery the iteration started from and the largest it visited (K, G).
     passes
         Iterations of the periphery fixed point (largest over samples).
     """
@@ -213,8 +211,6 @@ class Solution:
     curves: dict[str, F64] | None
     interstage_db: F64
     interstage_sections: INT
-    w_first_mm: F64
-    w_peak_mm: F64
     passes: int
 
 

@@ -16,7 +16,7 @@ from numpy.typing import NDArray
 
 from core import rf
 
-__all__ = ["ChosenPoints", "PaddedPoints", "Points", "point_coordinates", "prune"]
+__all__ = ["ChosenPoints", "Points", "point_coordinates", "prune"]
 
 F64 = NDArray[np.float64]
 
@@ -104,11 +104,6 @@ class ChosenPoints:
             self.row = np.repeat(np.arange(self.r_n), pts.uniform)
         else:
             self.row = pts.row
-            self.ends = np.append(pts.seg_starts[1:], pts.n_points)
-
-    def padded(self) -> PaddedPoints:
-        """The chosen segments of ragged points alone (see :class:`PaddedPoints`)."""
-        return PaddedPoints(self.starts[self.seg], self.ends[self.seg])
 
     def take(self, x: F64) -> F64:
         """(Q,) or (K, Q) point values → the chosen points, (K, P′)."""
@@ -121,54 +116,6 @@ class ChosenPoints:
         if self.uniform is not None:
             return x.reshape(self.k_n, self.r_n, self.uniform).max(axis=2)
         return np.maximum.reduceat(x, self.starts, axis=1)[self.k_idx, self.seg]
-
-    def row_max_m(self, x: F64) -> F64:
-        """Max over each row's chosen points of (K, M, P′) values → (K, R, M)."""
-        k_n, m_n = x.shape[:2]
-        if self.uniform is not None:
-            red = x.reshape(k_n, m_n, self.r_n, self.uniform).max(axis=3)
-        else:
-            red = np.maximum.reduceat(x, self.starts, axis=2)
-            red = np.take_along_axis(red, self.seg[:, None, :], axis=2)
-        return red.transpose(0, 2, 1)
-
-    def row_min(self, x: F64) -> F64:
-        if self.uniform is not None:
-            return x.reshape(self.k_n, self.r_n, self.uniform).min(axis=2)
-        return np.minimum.reduceat(x, self.starts, axis=1)[self.k_idx, self.seg]
-
-
-class PaddedPoints:
-    """The chosen segment of every (sample, row) of ragged points, padded to a fixed width.
-
-    Row r gets the width L_r of its longest chosen segment over the samples; a shorter
-    segment repeats its last point, which leaves every maximum and minimum unchanged. Values
-    then take (K, ΣL_r) and reduce over fixed blocks, instead of every segment's points.
-    """
-
-    uniform = None
-
-    def __init__(self, first: NDArray[np.int64], end: NDArray[np.int64]) -> None:
-        self.k_n, self.r_n = first.shape
-        length = end - first
-        width = length.max(axis=0)
-        self.row = np.repeat(np.arange(self.r_n), width)
-        offset = np.arange(self.row.size) - np.repeat(np.cumsum(width) - width, width)
-        self.idx = first[:, self.row] + np.minimum(offset[None, :], length[:, self.row] - 1)
-        self.k_idx = np.arange(self.k_n)[:, None]
-        self.starts = np.cumsum(width) - width
-
-    def take(self, x: F64) -> F64:
-        """(Q,) or (K, Q) point values → the chosen points, (K, ΣL_r)."""
-        return x[self.idx] if x.ndim == 1 else x[self.k_idx, self.idx]
-
-    def row_max(self, x: F64) -> F64:
-        """Max over each row's chosen points of (K, ΣL_r) values → (K, R)."""
-        return np.maximum.reduceat(x, self.starts, axis=1)
-
-    def row_min(self, x: F64) -> F64:
-        """Min over each row's chosen points of (K, ΣL_r) values → (K, R)."""
-        return np.minimum.reduceat(x, self.starts, axis=1)
 
 
 def point_coordinates(q_u: F64, q_sw: F64, pts: Points, f0_hz: F64, bw_frac: F64):
@@ -209,38 +156,29 @@ def _upper_hull(x: F64, y: F64) -> NDArray[np.bool_]:
     return keep
 
 
-def prune(
-    pts: Points, lp: F64, lsw: F64, h: F64, a_max: float | None = None
-) -> tuple[Points, NDArray[np.bool_]]:
+def prune(pts: Points, lp: F64, lsw: F64, h: F64) -> Points:
     """Keep only the points that can be the worst case of any sizing request.
 
     Every worst-in-band quantity of the solver (P1dB loss, gain loss, driver headroom) is a
     function F = g(L_p, L_sw) + ψ(h) of the coordinates of :func:`point_coordinates`. ψ is
     non-decreasing (the exact |Γ| = a·h/√(1 + a²h²), a = |r − 1|/(2√r), rises with h for every
     ratio r, and the Bode–Fano floor keeps that), and the mismatch loss ψ = 10·log10(1 + a²h²)
-    is convex in h while a·h ≤ 1, i.e. |Γ| ≤ 1/√2. g is non-decreasing and convex:
+    is convex in ln h for every a (a softplus of 2·ln h). g is non-decreasing and convex:
     non-negative weights on L_p and L_sw (section, split and network counts) plus the convex
     driver-compression term max(0, N·L_sec − c). Weights and ratio depend on the request, these
     properties do not. A point i is dropped when
 
     1. another point is at least as large in all three coordinates (Pareto dominance; of two
-       identical points the earlier is kept) — always exact;
+       identical points the earlier is kept);
     2. (L_p, L_sw) of i lies below the chord between the max-h points j, k of largest L_p and
        of largest L_sw, and h_i ≤ min(h_j, h_k): g(x_i) ≤ max(g(x_j), g(x_k)) by monotonicity
-       and convexity — always exact (for a state tuned to its own band, j and k are the two
-       band edges, where |T_N| = 1);
-    3. on a row without switch loss (L_sw ≡ 0), (L_p, y(h)) of i lies inside the upper-right
-       hull of the other points, for a non-decreasing map y: F is then convex in (L_p, y)
-       wherever ψ∘y⁻¹ is. With ``a_max`` None, y = h: exact while ψ is convex in h, which the
-       caller verifies per request with :func:`core.pa_design.convexity_holds` (and falls back
-       to a safer pruning). With ``a_max`` = A, y = ln(1 + A²h²): then
-       ψ∘y⁻¹(u) ∝ ln(1 − k + k·eᵘ), k = (a/A)², whose second derivative
-       k(1 − k)eᵘ/(1 − k + k·eᵘ)² is ≥ 0 for every a ≤ A; A = inf takes y = ln h (ψ is convex
-       in ln h for every a, a softplus), so that pruning is exact for every request and its
-       rows are not returned as ``convex_rows``. The Bode–Fano floor max(ψ, const) keeps
-       convexity in every case.
+       and convexity (for a state tuned to its own band, j and k are the two band edges, where
+       |T_N| = 1);
+    3. on a row without switch loss (L_sw ≡ 0), (L_p, ln h) of i lies inside the upper-right
+       hull of the other points: F is convex and non-decreasing in (L_p, ln h), so its maximum
+       over the hull is at a vertex. The Bode–Fano floor max(ψ, const) keeps convexity.
 
-    Only rows where rule 3 drops a point that rules 1–2 keep depend on convexity.
+    Each rule is exact for every request.
 
     Parameters
     ----------
@@ -248,16 +186,11 @@ def prune(
         Uniform points (:meth:`Points.from_grid`).
     lp, lsw, h : ndarray, (Q,)
         Coordinates of every point.
-    a_max : float, optional
-        Largest Chebyshev scale a = |r − 1|/(2√r) for which rule 3 must be exact without a
-        check; None: y = h, checked by :func:`core.pa_design.convexity_holds` (a·h ≤ 1).
 
     Returns
     -------
-    pruned : Points
+    Points
         The kept points, never an empty segment.
-    convex_rows : ndarray of bool, (R,)
-        Rows whose rule-3 pruning holds only while ψ is convex in y (empty for A = inf).
     """
     if pts.uniform is None:
         raise ValueError("pts: pruning needs the uniform grid of Points.from_grid")
@@ -291,21 +224,10 @@ def prune(
     anchor = (idx == j) | (idx == k)
     keep &= ~((lo <= hi) & (h <= h_anchor) & ~anchor)
     hull_rows = ~(c > 0).any(axis=(1, 2))
-    before = keep.copy()
-    if a_max is None:
-        y = h
-    elif np.isinf(a_max):
-        y = np.log(np.maximum(h, 1e-300))  # h = 0: a far-left stand-in, ψ there ≥ ψ(0)
-    else:  # h over the segment's largest h: the check is then a·h_max ≤ A
-        h_top = np.maximum(h.max(axis=-1, keepdims=True), 1e-300)
-        y = np.log1p((a_max * h / h_top) ** 2)
+    y = np.log(np.maximum(h, 1e-300))  # h = 0: a far-left stand-in, ψ there ≥ ψ(0)
     for r in np.flatnonzero(hull_rows):
         for s in range(n_s):
             keep[r, s] &= _upper_hull(a[r, s], y[r, s])
-    # Only rows where rule 3 dropped a point that rules 1–2 kept depend on convexity.
-    convex_rows = (before & ~keep).any(axis=(1, 2))
-    if a_max is not None and np.isinf(a_max):
-        convex_rows[:] = False
     # Never leave a segment empty (cannot happen with the rules above; kept as a guard that
     # errs on the safe side: the whole grid of that segment).
     empty = ~keep.any(axis=-1)
@@ -313,5 +235,4 @@ def prune(
     flat = keep.reshape(-1)
     counts = keep.sum(axis=-1).reshape(-1)
     starts = np.concatenate(([0], np.cumsum(counts)[:-1])).astype(np.int64)
-    pruned = Points(pts.f_hz[flat], pts.row[flat], pts.n_sec[flat], starts, n_s, None)
-    return pruned, convex_rows
+    return Points(pts.f_hz[flat], pts.row[flat], pts.n_sec[flat], starts, n_s, None)

@@ -7,8 +7,8 @@ Used by :func:`core.estimate.sweep_p1db`. The designs are those of
 - wideband and switched rows, one design per candidate: sample (j, t) sizes the design so that
   band j meets target t, the other rows unconstrained (request 0), K = n_bands × T.
 
-Both solve on the worst-case points only (:func:`core.pa_design.prune_points`); the samples
-for which the pruning's convexity condition does not hold are solved again on the full grid.
+Both solve on the worst-case points only (:func:`core.pa_design.prune_points`, exact for
+every request), warm-started between neighbouring targets (:mod:`core.pa_warm`).
 """
 
 from __future__ import annotations
@@ -19,9 +19,9 @@ import numpy as np
 import pandas as pd
 from numpy.typing import NDArray
 
-from core import rf
+from core import pa_warm, rf
 from core.architectures import Plan
-from core.pa_design import convex_at_start, convexity_holds, prune_points, solve
+from core.pa_design import prune_points
 from core.pa_layout import LayoutParams, layout
 from core.pa_model import BF_GAMMA_LIMIT, DesignBatch, Solution
 from core.pa_points import Points
@@ -66,86 +66,17 @@ def _subset(plan: Plan, rows: NDArray[np.int64]) -> tuple[DesignBatch, LayoutPar
 
 
 def _solve_part(full: DesignBatch, p_req: NDArray[np.float64]) -> tuple[DesignBatch, Solution]:
-    pruned, convex = prune_points(full)
-    # Samples whose first periphery already breaks the convexity of pruning rule 3 in h go to
-    # rule 3 in ln h (exact for every request) at once; the others are checked after solving.
-    fast = convex_at_start(pruned, p_req, convex)
-    sol = solve(pruned, p_req[fast]) if fast.any() else None
-    ok = np.zeros(fast.shape, dtype=bool)
-    if sol is not None:
-        ok[fast] = convexity_holds(pruned, sol, convex)
-    if ok.all():
-        return pruned, sol
-    safe, _ = prune_points(full, np.inf)
-    redo = solve_warm(safe, p_req[~ok])
-    if sol is None:
-        return pruned, replace(redo, curves=None)
-    full_sol = _expand(sol, fast, redo, ~ok)
-    return pruned, full_sol
+    pruned = prune_points(full)
+    return pruned, solve_warm(pruned, p_req)
 
 
-#: Every ``_ANCHOR_STEP``-th sample is solved cold and seeds the search of its neighbours.
+#: Every ``_ANCHOR_STEP``-th sample is solved cold and brackets its neighbours.
 _ANCHOR_STEP = 16
-#: Relative shrink of a seed periphery: it stays below the neighbour's smallest feasible W.
-_SEED_SHRINK = 1e-9
-
-
-def _one_request_row(b: DesignBatch, p_req: NDArray[np.float64]) -> NDArray[np.int64]:
-    """Row of the single positive request of each design per sample, (K, G); −1 otherwise."""
-    pos = p_req > 0.0
-    count = np.add.reduceat(pos.astype(np.int64), b.starts, axis=1)
-    last = np.maximum.reduceat(np.where(pos, np.arange(b.n_rows), -1), b.starts, axis=1)
-    return np.where(count == 1, last, -1)
 
 
 def solve_warm(b: DesignBatch, p_req: NDArray[np.float64]) -> Solution:
-    """:func:`core.pa_design.solve` with warm starts between neighbouring samples.
-
-    Samples 0, s, 2s, … (s = :data:`_ANCHOR_STEP`) are solved from the cold bound; every other
-    sample starts from the periphery of an adjacent anchor whose design has its single request
-    in the same row and no larger. With one requested row per design the section and stage
-    choices at a periphery do not depend on the request's size and W_req scales with it, so a
-    periphery infeasible for the smaller request is infeasible for the larger: the anchor's
-    periphery, shrunk by :data:`_SEED_SHRINK`, is a lower bound of the neighbour's. Designs
-    without such an anchor start cold. Array sizing sorts its targets, so most neighbours
-    qualify and need fewer passes. The bound rests on the anchor's periphery being its least
-    feasible one, which the search from below reaches; the larger neighbour is not used as an
-    upper end, since W_req can cross W more than once across a cell-count step.
-
-    Parameters
-    ----------
-    b : DesignBatch
-    p_req : ndarray, (K, R)
-        Requests (W), as for :func:`core.pa_design.solve`.
-
-    Returns
-    -------
-    Solution
-        Per-point curves are dropped (``curves`` None).
-    """
-    k_n = p_req.shape[0]
-    anchor = np.arange(k_n) % _ANCHOR_STEP == 0
-    if k_n <= 2 * _ANCHOR_STEP:
-        return replace(solve(b, p_req), curves=None)
-    first = solve(b, p_req[anchor])
-    a_idx = np.flatnonzero(anchor)
-    rest = np.flatnonzero(~anchor)
-    row = _one_request_row(b, p_req)
-    floor = np.zeros((rest.size, b.starts.size))
-    for a_of_rest in (rest // _ANCHOR_STEP, rest // _ANCHOR_STEP + 1):
-        inside = a_of_rest < a_idx.size
-        a_pos = np.minimum(a_of_rest, a_idx.size - 1)
-        a_k = a_idx[a_pos]
-        r_a, r_k = row[a_k], row[rest]
-        same = inside[:, None] & (r_k >= 0) & (r_a == r_k)
-        rr = np.maximum(r_k, 0)
-        p_a = np.take_along_axis(p_req[a_k], rr, axis=1)
-        p_k = np.take_along_axis(p_req[rest], rr, axis=1)
-        below = same & (p_a <= p_k)
-        seed = first.w_out_mm[a_pos] * (1.0 - _SEED_SHRINK)
-        floor = np.maximum(floor, np.where(below, seed, 0.0))
-    second = solve(b, p_req[rest], floor)
-    return _expand(first, anchor, second, ~anchor)
+    """:func:`core.pa_warm.solve_warm` with this module's anchor spacing."""
+    return pa_warm.solve_warm(b, p_req, _ANCHOR_STEP)
 
 
 def _expand(a: Solution, a_rows: NDArray[np.bool_], b: Solution, b_rows: NDArray[np.bool_]):

@@ -15,7 +15,7 @@ from scipy import constants
 from core import rf
 from core.architectures import build_plan
 from core.estimate import evaluate, sweep_p1db
-from core.pa_design import convexity_holds, prune_points, solve
+from core.pa_design import prune_points, solve
 from core.pa_layout import quarter_wave_mm
 from core.pa_model import bode_fano_headroom_db, chebyshev_scale, drain_efficiency
 from core.pa_points import Points, prune
@@ -104,19 +104,20 @@ def test_bode_fano_headroom_is_finite_for_an_underflowed_bound():
 @given(
     alpha=st.floats(0.0, 20.0),
     beta=st.floats(0.0, 20.0),
-    a=st.floats(0.0, 1.0),
+    a=st.floats(0.0, 30.0),
     c=st.floats(0.0, 1.0),
     kind=st.sampled_from(list(CandidateKind)),
 )
 def test_pruned_points_keep_every_worst_case(alpha, beta, a, c, kind):
-    # Any loss of the form α·L_p + β·L_sw + max(0, L_sec − c) + 10·log10(1 + a²h²) (a·h ≤ 1):
-    # its maximum over the band is the same on the pruned points as on the full grid.
+    # Any loss of the form α·L_p + β·L_sw + max(0, L_sec − c) + 10·log10(1 + a²h²), for any
+    # scale a (|Γ| up to 0.999 here): its maximum over the band is the same on the pruned
+    # points as on the full grid.
     plan = build_plan(study(kinds=(kind,)))
     b = plan.batch
     from core.pa_design import _constants
 
     full = _constants(b)
-    pts, _ = prune(b.points, full["l_p"], full["l_sw"], full["h"])
+    pts = prune(b.points, full["l_p"], full["l_sw"], full["h"])
     pruned = _constants(b.with_points(pts))
 
     def worst(cst, p: Points):
@@ -139,10 +140,9 @@ def test_pruned_solve_equals_full_grid(process):
     b = plan.batch
     p = np.asarray(rf.dbm_to_w(np.linspace(5.0, 38.0, 40)))[:, None] * np.ones(b.n_rows)
     full = solve(b, p)
-    pb, convex = prune_points(b)
+    pb = prune_points(b)
     part = solve(pb, p)
-    ok = convexity_holds(pb, part, convex)
-    assert ok.mean() > 0.5
+    assert pb.points.n_points < b.points.n_points
     for name in (
         "w_out_mm",
         "n_sections",
@@ -154,7 +154,7 @@ def test_pruned_solve_equals_full_grid(process):
         "dc_out_w",
         "dc_drivers_w",
     ):
-        x, y = getattr(full, name)[ok], getattr(part, name)[ok]
+        x, y = getattr(full, name), getattr(part, name)
         np.testing.assert_allclose(y, x, rtol=1e-9, atol=1e-12, err_msg=name)
 
 

@@ -40,7 +40,7 @@ def grouped(harbour):
     kinds = np.array([c.kind for c in plan.candidates], dtype=object)[plan.row_cand]
     rows = np.flatnonzero(kinds != CandidateKind.SEPARATE)
     b, _, _ = sweep._subset(plan, rows)
-    safe, _ = prune_points(b, np.inf)
+    safe = prune_points(b)
     # Array-sizing targets: N = 1…1024 elements per band (falling P1dB), as array_plan.
     n = np.arange(1, 1025)
     x = np.stack(
