@@ -371,7 +371,7 @@ def array_plan(study: Study, n_values: ArrayLike | None = None) -> pd.DataFrame:
                 "n_elements": n,
                 "p1db_elem_dbm": need,
                 "feasible": feasible,
-                "reason": est["reason"][r].astype(str).astype(object),
+                "reason": est["reason"][r],
                 "pa_count": n,
                 "array_dc_power_w": np.where(feasible, n * est["dc_power_w"][r], np.nan),
                 "array_pa_cost_usd": np.where(feasible, n * per_pa, np.nan),

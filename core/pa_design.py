@@ -440,6 +440,13 @@ def prepare(b: DesignBatch) -> dict[str, F64]:
     c["v_bf"] = (bf / np.sqrt(1.0 - bf**2))[b.points.row]  # |Γ| = v/√(1 + v²)
     may_drive = np.where(b.stages_fixed > 0, b.stages_fixed, b.max_stages) >= 2
     c["port"] = b.band_select_db + np.where(may_drive, np.maximum(0.0, -c["head"]), 0.0)
+    # 1/T_N(sec θm) per row and section count, (R, S): the ripple |Γ|m of a network is then
+    # v/√(1 + v²) with v = a(r)/T_N(sec θm) (see chebyshev_scale). Pozar's ln form with R = e²
+    # has a ½|ln R| scale of 1, so it returns 1/T_N(sec θm) itself.
+    n_sec = np.arange(1, b.max_sections + 1, dtype=float)[None, :]
+    c["inv_tn"] = np.asarray(
+        rf.chebyshev_max_reflection(np.e**2, n_sec, b.bw_frac[:, None], method="pozar_ln")
+    )
     return c
 
 
@@ -518,7 +525,8 @@ def _finish(b: DesignBatch, c: dict, st: dict, passes: int) -> Solution:
     nst_r = st["n_st"][:, g]
     w_r = st["w_eff"][:, g]
     ratio = st["ratio"]
-    gamma_max = np.asarray(rf.chebyshev_max_reflection(ratio, n_sec_g[:, g], b.bw_frac[None, :]))
+    v_max = chebyshev_scale(ratio) * c["inv_tn"][np.arange(b.n_rows)[None, :], st["s_g"][:, g]]
+    gamma_max = v_max / np.sqrt(1.0 + v_max * v_max)
     p_dev = b.p1db_w_per_mm[None, :] * w_r
     # Driver k (k = 1 … n − 1 counted back from the output) has W_out/ratio^k.
     k = np.arange(1, max(int(nst_r.max()), 1), dtype=float)

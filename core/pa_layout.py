@@ -145,10 +145,12 @@ def _switches(b: DesignBatch, lp: LayoutParams, s: Solution) -> dict[str, F64]:
     v_off = b.swing_v[None, :] * np.sqrt(z_n / ropt) * divider
     stack = np.maximum(1.0, np.ceil(v_off / lp.switch_v_max_v[None, :] - 1e-9))
     stack_is = np.maximum(1.0, np.ceil(b.swing_v * divider / lp.switch_v_max_v - 1e-9))
-    # Σ_i C_i/C_N = Σ_i Z_N/Z_i = Σ_i r^((N − i)/N), i = 1 … N.
+    # Σ_i C_i/C_N = Σ_i Z_N/Z_i = Σ_i r^((N − i)/N), i = 1 … N; only switched rows have it.
     i = np.arange(1, b.max_sections + 1, dtype=float)
-    scale = np.where(i <= n[..., None], r[..., None] ** ((n[..., None] - i) / n[..., None]), 0.0)
-    w_out_net = lp.m_elements[None, :] * w_sw * scale.sum(axis=-1)
+    n_on, r_on_rows = n[:, on, None], r[:, on, None]
+    scale = np.zeros(w_sw.shape)
+    scale[:, on] = np.where(i <= n_on, r_on_rows ** ((n_on - i) / n_on), 0.0).sum(axis=-1)
+    w_out_net = lp.m_elements[None, :] * w_sw * scale
     k = np.arange(1, int(nst.max()) if nst.size else 1, dtype=float)
     dr = b.drive_ratio[None, :, None]
     drivers = np.where(k <= nst[..., None] - 1, dr ** (-k), 0.0).sum(axis=-1)

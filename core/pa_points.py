@@ -227,7 +227,9 @@ def prune(pts: Points, lp: F64, lsw: F64, h: F64) -> Points:
     y = np.log(np.maximum(h, 1e-300))  # h = 0: a far-left stand-in, ψ there ≥ ψ(0)
     for r in np.flatnonzero(hull_rows):
         for s in range(n_s):
-            keep[r, s] &= _upper_hull(a[r, s], y[r, s])
+            kept = np.flatnonzero(keep[r, s])
+            if kept.size > 2:  # two points left by rule 1 are both hull vertices
+                keep[r, s, kept] = _upper_hull(a[r, s, kept], y[r, s, kept])
     # Never leave a segment empty (cannot happen with the rules above; kept as a guard that
     # errs on the safe side: the whole grid of that segment).
     empty = ~keep.any(axis=-1)

@@ -62,8 +62,9 @@ INT = NDArray[np.int64]
 
 #: Relative shrink of a seed periphery: it stays below the neighbour's smallest feasible W.
 SEED_SHRINK = 1e-9
-#: Newton steps on the model (quadratic convergence from the interpolated start; 3–4 suffice).
-_NEWTON_STEPS = 8
+#: Cap of the Newton steps on the model (quadratic convergence from the interpolated start:
+#: 3–4 reach the rounding level, where the loop stops).
+_NEWTON_STEPS = 12
 #: Largest normalised Chebyshev response for which step 2 of the module notes holds.
 _H_MAX = np.sqrt(2.0)
 
@@ -252,7 +253,7 @@ def _brackets(b, c, p_req, a_idx, rest, a_st, a_sol, act) -> dict[str, F64]:
             v = np.maximum(av, vbf)
             v2 = v * v
             loss = kc + np.log1p(v2)
-            slope = np.where(av > vbf, h * h * (r * r - 1.0) / (4.0 * r * (1.0 + v2)), 0.0)
+            slope = (av > vbf) * (h * h) * (r * r - 1.0) / (4.0 * r * (1.0 + v2))
             terms.append((loss, slope))
         (l1, s1), (l2, s2) = terms
         first = np.where(same_seg, l1 >= l2, l1 <= l2)
@@ -265,6 +266,8 @@ def _brackets(b, c, p_req, a_idx, rest, a_st, a_sol, act) -> dict[str, F64]:
         # Bisect only when Newton leaves the bracket (at the root a step may round onto an end).
         inside = (nxt_u >= u_lo) & (nxt_u <= u_hi)
         u = np.where(inside, nxt_u, 0.5 * (u_lo + u_hi))
+        if (~elig | (inside & (np.abs(step) <= 1e-14))).all():  # W to 1e-14, far below _W_RTOL
+            break
     w_root = np.exp(u)
     # Past the cell limit nothing depends on W (the periphery is capped): W_req is constant,
     # W* = W_req ∝ p, and a lower anchor beyond the limit shows that no W below it serves p.
