@@ -218,13 +218,8 @@ def _stage_rule(b: DesignBatch, c: dict[str, F64], rest: F64) -> tuple[INT, NDAr
     return np.where(fixed > 0, fixed, n_auto).astype(np.int64), found | (fixed > 0)
 
 
-def _pass(b: DesignBatch, c: dict[str, F64], w_g: F64, req_db: F64) -> dict:
-    """One evaluation of the chain at output periphery ``w_g`` (K, G); see the module notes.
-
-    ``req_db`` (K, R) is 10·log10 of each row's request (−inf where there is none).
-    """
-    pts = b.points
-    g, pr = b.group, pts.row
+def _geometry(b: DesignBatch, c: dict[str, F64], w_g: F64) -> dict:
+    """Cells, split levels and transformation ratio at output periphery ``w_g`` (K, G)."""
     cell, max_cells = c["cell_g"], c["max_cells_g"]
     # Unit cells: the largest cell shrinks as 1/f (cell_max_mm is already at the design top).
     n_need = np.maximum(1.0, np.ceil(w_g / cell - 1e-9))
@@ -232,13 +227,62 @@ def _pass(b: DesignBatch, c: dict[str, F64], w_g: F64, req_db: F64) -> dict:
     w_eff = np.minimum(w_g, max_cells * cell)
     # Binary combining tree: ceil(log2 n) split levels, one lossy λ/4 section per level.
     levels = np.maximum(0.0, np.ceil(np.log2(n_cells) - 1e-9)) + 0.0  # + 0.0: no −0.0
-    ratio = LOAD_OHM * w_eff[:, g] / b.ropt_ohm_mm[None, :]  # r = 50·W/(Ropt·W), DESIGN §4
+    ratio = LOAD_OHM * w_eff[:, b.group] / b.ropt_ohm_mm[None, :]  # r = 50·W/(Ropt·W), §4
+    return {
+        "w": w_g,
+        "w_eff": w_eff,
+        "n_need": n_need,
+        "n_cells": n_cells,
+        "levels": levels,
+        "ratio": ratio,
+    }
+
+
+def _decide(b: DesignBatch, c: dict, geo: dict, seg_worst: F64, req_db: F64) -> dict:
+    """Section and stage choices and the worst loss, from the segment maxima (K, R, S)."""
+    g = b.group
+    # Section count: the N that maximises the worst in-band power delivered to the RF port
+    # relative to each row's request — the N needing the smallest output periphery. Losses:
+    # network, mismatch, combiner, band-select and driver compression (counted wherever the
+    # design can have drivers). Rows without a request (sweep) do not vote.
+    need = seg_worst + (c["port"] + req_db)[..., None]
+    s_g = np.maximum.reduceat(need, b.starts, axis=1).argmin(axis=-1)  # fewest on ties
+    out_max = np.take_along_axis(seg_worst, s_g[:, g][..., None], axis=2)[..., 0]
+    n_st, found = _stage_rule(b, c, out_max)
+    # Last driver at the output stage's P1dB: it must deliver P1dB/(G − 1 dB) through one
+    # interstage network, with 1/drive_ratio of the output periphery.
+    head = np.where(n_st[:, g] >= 2, c["head"][None, :], np.inf)
+    deficit = np.maximum(0.0, -head)
+    # Row constants added after the maximum: rounding is monotone, so this is the maximum of
+    # the per-point loss out + band select + deficit.
+    worst_loss = out_max + b.band_select_db[None, :] + deficit
+    return {
+        **geo,
+        "s_g": s_g,
+        "seg": c["seg0"] + s_g[:, g],
+        "out_max": out_max,
+        "n_st": n_st,
+        "found": found,
+        "head": head,
+        "deficit": deficit,
+        "worst_loss": worst_loss,
+    }
+
+
+def _pass(b: DesignBatch, c: dict[str, F64], w_g: F64, req_db: F64) -> dict:
+    """One evaluation of the chain at output periphery ``w_g`` (K, G); see the module notes.
+
+    ``req_db`` (K, R) is 10·log10 of each row's request (−inf where there is none).
+    """
+    pts = b.points
+    g, pr = b.group, pts.row
+    geo = _geometry(b, c, w_g)
     # Exact Chebyshev response v = a(r)·h_N (see chebyshev_scale), floored at the Bode–Fano
     # bound (Pozar §5.9); its mismatch loss is the insertion-loss function 10·log10(1 + v²),
     # equal to −10·log10(1 − |Γ|²) with |Γ|² = v²/(1 + v²) (Pozar §8.3).
     # The (K, Q) work is done in place: it is most of a pass.
     uniform = pts.uniform is not None
-    tot = chebyshev_scale(ratio)[:, pr]
+    tot = chebyshev_scale(geo["ratio"])[:, pr]
     tot *= c["h"]
     np.maximum(tot, c["v_bf"], out=tot)
     v = tot.copy() if uniform else None
@@ -247,54 +291,37 @@ def _pass(b: DesignBatch, c: dict[str, F64], w_g: F64, req_db: F64) -> dict:
     np.log10(tot, out=tot)
     tot *= 10.0
     ml = tot.copy() if uniform else None
-    # Section count: the N that maximises the worst in-band power delivered to the RF port
-    # relative to each row's request — the N needing the smallest output periphery. Losses:
-    # network, mismatch, combiner, band-select and driver compression (counted wherever the
-    # design can have drivers). Rows without a request (sweep) do not vote.
-    comb_all = levels[:, g][:, pr]
+    comb_all = geo["levels"][:, g][:, pr]
     comb_all *= c["l_p"]  # the combiner is not retuned: passive Q
     tot += c["net"]
     tot += comb_all
-    seg_worst = pts.seg_max(tot)  # (K, R, S)
-    need = seg_worst + (c["port"] + req_db)[..., None]
-    s_g = np.maximum.reduceat(need, b.starts, axis=1).argmin(axis=-1)  # fewest on ties
-    ch = ChosenPoints(pts, c["seg0"] + s_g[:, g])
-    st: dict = {}
-    if not uniform:
-        # Ragged points keep every segment: the chosen losses are ``tot`` itself and their
-        # row maxima are the segment maxima already taken at the chosen section count.
-        out = tot
-        out_max = np.take_along_axis(seg_worst, s_g[:, g][..., None], axis=2)[..., 0]
+    st = _decide(b, c, geo, pts.seg_max(tot), req_db)
+    ch = ChosenPoints(pts, st.pop("seg"))
+    if uniform:
+        net = ch.take(c["net"])
+        comb = ch.take(comb_all)
+        st.update(v=ch.take(v), net=net, comb=comb, out=net + ch.take(ml) + comb)
     else:
-        st.update(v=ch.take(v), net=ch.take(c["net"]), comb=ch.take(comb_all))
-        out = st["net"] + ch.take(ml) + st["comb"]
-        out_max = ch.row_max(out)
-    n_st, found = _stage_rule(b, c, out_max)
-    # Last driver at the output stage's P1dB: it must deliver P1dB/(G − 1 dB) through one
-    # interstage network, with 1/drive_ratio of the output periphery.
-    head = np.where(n_st[:, g] >= 2, c["head"][None, :], np.inf)
-    deficit = np.maximum(0.0, -head)
-    # Row constants added after the maximum: rounding is monotone, so this is the maximum of
-    # the per-point loss out + band select + deficit (formed in full by _finish).
-    worst_loss = out_max + b.band_select_db[None, :] + deficit
-    st.update(
-        w=w_g,
-        w_eff=w_eff,
-        n_need=n_need,
-        n_cells=n_cells,
-        levels=levels,
-        ratio=ratio,
-        s_g=s_g,
-        ch=ch,
-        out=out,
-        out_max=out_max,
-        n_st=n_st,
-        found=found,
-        head=head,
-        deficit=deficit,
-        worst_loss=worst_loss,
-    )
+        # Ragged points keep every segment: the chosen losses are ``tot`` itself.
+        st["out"] = tot
+    st["ch"] = ch
     return st
+
+
+def _reduced_pass(b: DesignBatch, c: dict, w_g: F64, req_db: F64, idx: INT) -> dict:
+    """:func:`_pass` with one given point per (row, section count), ``idx`` (K, R·S).
+
+    Exact when ``idx`` holds each segment's worst point at ``w_g`` (the caller shows that it
+    does); per-point losses are not kept (no ``out``), the chosen segments are ``seg``.
+    """
+    g = b.group
+    geo = _geometry(b, c, w_g)
+    n_s = b.points.n_sections
+    a = np.repeat(chebyshev_scale(geo["ratio"]), n_s, axis=1)
+    v = np.maximum(a * c["h"][idx], c["v_bf"][idx])
+    tot = c["net"][idx] + 10.0 * np.log10(1.0 + v * v)
+    tot += np.repeat(geo["levels"][:, g], n_s, axis=1) * c["l_p"][idx]
+    return _decide(b, c, geo, tot.reshape(tot.shape[0], -1, n_s), req_db)
 
 
 def _required(b: DesignBatch, st: dict, p_req_w: F64) -> F64:

@@ -46,13 +46,14 @@ from core.pa_design import (
     _finish,
     _least_feasible,
     _pass,
+    _reduced_pass,
     _required,
     _slice,
     initial_periphery,
     prepare,
     solve,
 )
-from core.pa_model import LOAD_OHM, DesignBatch, Solution
+from core.pa_model import LOAD_OHM, DesignBatch, Solution, chebyshev_scale
 from core.pa_points import ChosenPoints
 
 __all__ = ["one_request_row", "solve_warm"]
@@ -101,61 +102,111 @@ def solve_warm(b: DesignBatch, p_req: F64, step: int = 16) -> Solution:
     --------
     See :func:`core.sweep.sweep_arrays`, which calls it for the P1dB sweep.
     """
-    k_n = p_req.shape[0]
-    if k_n <= 2 * step or b.points.uniform is not None:
+    if b.points.uniform is not None:
         return replace(solve(b, p_req), curves=None)
     c = prepare(b)
-    anchor = np.arange(k_n) % step == 0
-    anchor[-1] = True  # every other sample has an anchor on both sides
-    a_idx, rest = np.flatnonzero(anchor), np.flatnonzero(~anchor)
-    w0 = initial_periphery(b, p_req[a_idx], c)
-    a_st, a_passes = _least_feasible(b, c, p_req[a_idx], w0)
-    act = _active_points(b, a_st)  # before _finish, which pads the per-point arrays
-    a_sol = _finish(b, c, a_st, a_passes)
+    k_n = p_req.shape[0]
+    a_idx, rest = _anchors(b, p_req, step)
+    if k_n <= 2 * step or 2 * a_idx.size > k_n:
+        st, passes = _least_feasible(b, c, p_req, initial_periphery(b, p_req, c))
+        return replace(_finish(b, c, st, passes), curves=None)
+    a_st, passes = _least_feasible(b, c, p_req[a_idx], initial_periphery(b, p_req[a_idx], c))
+    a_st = _merge(a_idx.size, [(np.arange(a_idx.size), a_st)], keep_out=True)
 
-    br = _brackets(b, c, p_req, a_idx, rest, a_st, a_sol, act)
+    br = _brackets(b, c, p_req, a_idx, rest, a_st)
     w_try = np.where(br["eligible"], br["w_root"], br["w_hi"])
-    st = _pass(b, c, w_try, _req_db(p_req[rest]))
-    req = _required(b, st, p_req[rest])
-    done = br["eligible"] & (req <= w_try * (1.0 + _W_RTOL)) & (req >= w_try * (1.0 - _W_RTOL))
-    ok = done.all(axis=1)
+    req_db = _req_db(p_req[rest])
+    parts = [(a_idx, a_st)]
+    done = np.zeros(w_try.shape, dtype=bool)
+    todo = np.ones(rest.size, dtype=bool)
 
-    parts: list[tuple[NDArray[np.int64], Solution]] = [(a_idx, a_sol)]
-    if ok.any():
-        part = _slice(st, ok)
-        part["ch"] = ChosenPoints(b.points, st["ch"].seg[ok])
-        parts.append((rest[ok], _finish(b, c, part, 1)))
-    if not ok.all():
-        bad = ~ok
-        floor = np.where(done, w_try * (1.0 - SEED_SHRINK), br["seed"])[bad]
+    def settle(sel: INT, st: dict) -> None:
+        """Keep the samples ``sel`` of pass ``st`` whose every design is at its root."""
+        req = _required(b, st, p_req[rest[sel]])
+        w = w_try[sel]
+        ok = br["eligible"][sel] & (req <= w * (1.0 + _W_RTOL)) & (req >= w * (1.0 - _W_RTOL))
+        done[sel] = ok
+        full = ok.all(axis=1)
+        if full.any():
+            parts.append((rest[sel[full]], _slice(st, full)))
+            todo[sel[full]] = False
+
+    # Where every segment keeps its worst point across the bracket, one point per segment
+    # gives the exact chain (module notes, step 4).
+    red = np.flatnonzero(br["reduced"])
+    if red.size:
+        settle(red, _reduced_pass(b, c, w_try[red], req_db[red], br["seg_points"][red]))
+    # The others: one full pass. A root past a step of h is the least feasible W only if the
+    # chain is infeasible just below the step (h rises up to it): one more pass for those.
+    sel = np.flatnonzero(todo)
+    if sel.size:
+        st = _pass(b, c, w_try[sel], req_db[sel])
+        req = _required(b, st, p_req[rest[sel]])
+        w = w_try[sel]
+        ok = br["eligible"][sel] & (req <= w * (1.0 + _W_RTOL)) & (req >= w * (1.0 - _W_RTOL))
+        check = ok & (br["w_check"][sel] > 0.0)
+        chk = np.flatnonzero(check.any(axis=1))
+        if chk.size:
+            w_chk = np.where(check[chk], br["w_check"][sel[chk]], w[chk])
+            st_chk = _pass(b, c, w_chk, req_db[sel[chk]])
+            req_chk = _required(b, st_chk, p_req[rest[sel[chk]]])
+            ok[chk] &= ~check[chk] | (req_chk > w_chk * (1.0 + _W_RTOL))
+            passes = max(passes, 2)
+        done[sel] = ok
+        full = ok.all(axis=1)
+        if full.any():
+            parts.append((rest[sel[full]], _slice(st, full)))
+            todo[sel[full]] = False
+    bad = np.flatnonzero(todo)
+    if bad.size:
+        floor = np.where(done[bad], w_try[bad] * (1.0 - SEED_SHRINK), br["seed"][bad])
         p_bad = p_req[rest[bad]]
         w_first = np.maximum(initial_periphery(b, p_bad, c), floor)
         f_st, f_passes = _least_feasible(b, c, p_bad, w_first)
-        parts.append((rest[bad], _finish(b, c, f_st, f_passes)))
-    return _combine(k_n, parts)
+        parts.append((rest[bad], f_st))
+        passes = max(passes, f_passes)
+    st = _merge(k_n, parts, keep_out=False)
+    st["ch"] = ChosenPoints(b.points, st.pop("seg"))
+    return replace(_finish(b, c, st, passes), curves=None)
+
+
+def _anchors(b: DesignBatch, p_req: F64, step: int) -> tuple[INT, INT]:
+    """Anchor samples and the others, both sorted.
+
+    Anchors: every ``step``-th sample and the last (so every other sample has one on each
+    side), both samples around a change of the requested rows (band j to band j + 1 of a
+    grouped sweep), and every sample whose largest request enters a new octave (h has a step
+    about every doubling of W, and a bracket may hold one only).
+    """
+    k_n = p_req.shape[0]
+    anchor = np.arange(k_n) % step == 0
+    anchor[-1] = True
+    row = one_request_row(b, p_req)
+    change = (row[1:] != row[:-1]).any(axis=1)
+    anchor[1:] |= change
+    anchor[:-1] |= change
+    p_key = p_req.max(axis=1)
+    octave = np.floor(2.0 * np.log2(np.where(p_key > 0, p_key, 1.0)))
+    anchor[1:] |= octave[1:] != octave[:-1]
+    return np.flatnonzero(anchor), np.flatnonzero(~anchor)
+
+
+def _merge(k_n: int, parts: list[tuple[INT, dict]], keep_out: bool) -> dict:
+    """One per-sample pass state of K samples from parts (sample indices, state)."""
+    parts = [(idx, {**st, "seg": st["ch"].seg} if "ch" in st else st) for idx, st in parts]
+    first = parts[0][1]
+    keys = [k for k in first if k != "ch" and (keep_out or k != "out")]
+    out = {k: np.empty((k_n, *first[k].shape[1:]), dtype=first[k].dtype) for k in keys}
+    for idx, st in parts:
+        for k in keys:
+            out[k][idx] = st[k]
+    return out
 
 
 def _req_db(p_req: F64) -> F64:
     out = np.full(p_req.shape, -np.inf)
     np.log10(p_req, out=out, where=p_req > 0)
     return 10.0 * out
-
-
-def _active_points(b: DesignBatch, st: dict) -> INT:
-    """Index of the worst point of each row's chosen section count, (K, R), ragged points."""
-    pts = b.points
-    n_q = pts.n_points
-    counts = np.diff(np.append(pts.seg_starts, n_q))
-    seg_of_point = np.repeat(np.arange(pts.seg_starts.size), counts)
-    chosen = seg_of_point[None, :] == st["ch"].seg[:, pts.row]
-    val = np.where(chosen, st["out"], -np.inf)
-    n_s = pts.n_sections
-    first = pts.seg_starts[::n_s]
-    last = np.append(first[1:], n_q)
-    out = np.empty(st["ch"].seg.shape, dtype=np.int64)
-    for r, (i0, i1) in enumerate(zip(first, last, strict=True)):
-        out[:, r] = i0 + val[:, i0:i1].argmax(axis=1)
-    return out
 
 
 def _deficit_fixed(b: DesignBatch, c: dict) -> NDArray[np.bool_]:
@@ -172,8 +223,13 @@ def _deficit_fixed(b: DesignBatch, c: dict) -> NDArray[np.bool_]:
     return fixed[g] | (c["head"] >= 0.0)
 
 
-def _brackets(b, c, p_req, a_idx, rest, a_st, a_sol, act) -> dict[str, F64]:
-    """Anchor brackets, eligibility (module notes, step 2) and model roots of the samples."""
+def _brackets(b, c, p_req, a_idx, rest, a_st) -> dict[str, F64]:
+    """Anchor brackets, eligibility (module notes, steps 2–3) and model roots of the samples.
+
+    Returns, each (K_rest, G): ``eligible``, ``w_root`` (the model's W*), ``w_check`` (a
+    periphery that must prove infeasible for the root to be the least feasible one, 0 where
+    none is needed), ``w_hi`` (upper anchor) and ``seed`` (lower bound for a full search).
+    """
     g_n = b.starts.size
     row = one_request_row(b, p_req)
     pos = np.searchsorted(a_idx, rest)
@@ -184,6 +240,7 @@ def _brackets(b, c, p_req, a_idx, rest, a_st, a_sol, act) -> dict[str, F64]:
     p_p = np.take_along_axis(p_req[a_idx[prev]], rr, axis=1)
     p_n = np.take_along_axis(p_req[a_idx[nxt]], rr, axis=1)
     w_a = a_st["w"]  # the search's periphery (the solution's is capped at the cell limit)
+    cells_ok = a_st["n_need"] <= b.per_design("max_cells")[None, :]
     gg = np.arange(g_n)[None, :]
     w_p, w_n = w_a[prev[:, None], gg], w_a[nxt[:, None], gg]
     has = r_k >= 0
@@ -199,89 +256,177 @@ def _brackets(b, c, p_req, a_idx, rest, a_st, a_sol, act) -> dict[str, F64]:
     a_hi = np.where(lo_is_p, nxt[:, None], prev[:, None])
     p_lo, p_hi = np.minimum(p_p, p_n), np.maximum(p_p, p_n)
     w_lo, w_hi = w_a[a_lo, gg], w_a[a_hi, gg]
-    lev = a_st["levels"]
+    ok_lo, ok_hi = cells_ok[a_lo, gg], cells_ok[a_hi, gg]
+    lev_lo, lev_hi = a_st["levels"][a_lo, gg], a_st["levels"][a_hi, gg]
+    cell = b.per_design("cell_max_mm")[None, :]
+    cap = b.per_design("max_cells")[None, :] * cell
     h_top = np.maximum.reduceat(
         np.maximum.reduceat(c["h"], b.points.seg_starts[:: b.points.n_sections]), b.starts
     )
-    elig = (
+    bracketed = (
         has
         & (r_p == r_k)
         & (r_n == r_k)
         & (p_lo <= p_k)
         & (p_k <= p_hi)
-        & a_sol.cells_ok[a_lo, gg]
-        & a_sol.cells_ok[a_hi, gg]
-        & (lev[a_lo, gg] == lev[a_hi, gg])
-        & _deficit_fixed(b, c)[rr]
-        & (h_top <= _H_MAX)[None, :]
+        & (p_lo > 0)
         & (w_hi >= w_lo)
     )
-    i1, i2 = act[a_lo, rr], act[a_hi, rr]
+    smooth = _deficit_fixed(b, c)[rr] & (h_top <= _H_MAX)[None, :]
+    # At most one step of h inside the bracket: none, one more split level (at n_cells =
+    # 2^m + 1, i.e. W = cell·(2^m + 1e-9) as _pass rounds), or the cell limit.
+    level_step = ok_lo & ok_hi & (lev_hi == lev_lo + 1)
+    cap_step = ok_lo & ~ok_hi & (lev_hi == lev_lo)
+    w_step = np.where(level_step, cell * (2.0**lev_lo + 1e-9), np.where(cap_step, cap, np.inf))
+    no_step = ok_lo & ok_hi & (lev_hi == lev_lo)
+    elig = bracketed & smooth & (no_step | ((level_step | cap_step) & (w_step < w_hi)))
+
     pts = b.points
-    counts = np.diff(np.append(pts.seg_starts, pts.n_points))
-    seg_of_point = np.repeat(np.arange(pts.seg_starts.size), counts)
-    same_seg = seg_of_point[i1] == seg_of_point[i2]
-    const = b.band_select_db[rr] + a_st["deficit"][a_lo, rr]
-    lv = lev[a_lo, gg]
-    model = [
-        (
-            np.log(10.0) / 10.0 * (c["net"][i] + lv * c["l_p"][i] + const),
-            c["h"][i],
-            c["v_bf"][i],
-        )
-        for i in (i1, i2)
-    ]
-    base = np.log(np.where(has, p_k, 1.0)) - np.log(b.p1db_w_per_mm[rr])
+    seg_arg = _segment_argmax(pts, a_st["out"])
+    model = _Model(b, c, a_st, seg_arg, a_lo, a_hi, rr, p_k)
     # Start: log-linear interpolation of W* in ln p between the anchors.
-    span = np.log(p_hi / np.where(p_lo > 0, p_lo, 1.0))
-    t = np.divide(
-        np.log(p_k / np.where(p_lo > 0, p_lo, 1.0)),
-        span,
-        out=np.zeros_like(span),
-        where=elig & (span > 0),
-    )
     l_lo, l_hi = np.log(np.maximum(w_lo, 1e-300)), np.log(np.maximum(w_hi, 1e-300))
-    u = l_lo + np.clip(t, 0.0, 1.0) * (l_hi - l_lo)
-    u_lo, u_hi = l_lo - 1e-9, l_hi + 1e-9
-    k_r = LOAD_OHM / b.ropt_ohm_mm[rr]
-    for _ in range(_NEWTON_STEPS):
-        r = k_r * np.exp(u)
+    l_step = np.log(np.minimum(w_step, w_hi))
+    t = np.log(p_k / np.where(p_lo > 0, p_lo, 1.0)) / np.log(
+        np.where(p_hi > p_lo, p_hi / np.where(p_lo > 0, p_lo, 1.0), np.e)
+    )
+    u0 = l_lo + np.clip(np.where(p_hi > p_lo, t, 0.0), 0.0, 1.0) * (l_hi - l_lo)
+    # Past the step when the model cannot reach p on piece A, below it: the request is then
+    # served above it only if the full chain is infeasible at the step (checked by the caller).
+    stepped = elig & (level_step | cap_step)
+    g_step = model.g(l_step, lev_lo, stepped)
+    beyond = stepped & (g_step < 0.0)
+    # Piece A, below the step (the whole bracket without one), at the lower anchor's levels.
+    u = model.root(elig & ~beyond, np.minimum(u0, l_step), l_lo - 1e-9, l_step + 1e-9, lev_lo)
+    u_b = model.root(beyond & level_step, np.maximum(u0, l_step), l_step, l_hi + 1e-9, lev_hi)
+    # Past the cell limit nothing depends on W (the periphery is capped): W* = W_req(cap).
+    u = np.where(beyond, np.where(cap_step, l_step - g_step, u_b), u)
+    w_check = np.where(beyond, np.minimum(w_step, w_hi), 0.0)
+
+    # Both anchors past the cell limit: W_req is constant past it, W* = W_req ∝ p, and the
+    # lower anchor shows that no W below the limit serves p.
+    capped = bracketed & ~ok_lo & ~ok_hi & (w_lo > cap)
+    w_root = np.where(capped, w_lo * p_k / np.where(p_lo > 0, p_lo, 1.0), np.exp(u))
+    w_check = np.where(capped, 0.0, w_check)
+
+    # Module notes, step 4: per bracket, every segment's worst point the same at both
+    # anchors, every point's Bode–Fano floor in the same state at both and no row's ratio
+    # crossing 1 (so a(r) moves one way): the loss difference of two points of a segment,
+    # c_i − c_q + 10·log10((1 + a²h_i²)/(1 + a²h_q²)) or one of them floored (constant), is
+    # then monotone in a, and the worst point of each segment is the same across the bracket.
+    floored = chebyshev_scale(a_st["ratio"])[:, pts.row] * c["h"] <= c["v_bf"]
+    ub, inv = np.unique(pos, return_inverse=True)  # brackets, by their upper anchor
+    r_a = a_st["ratio"]
+    keeps = (
+        (seg_arg[ub - 1] == seg_arg[ub]).all(axis=1)
+        & (floored[ub - 1] == floored[ub]).all(axis=1)
+        & ((r_a[ub - 1] - 1.0) * (r_a[ub] - 1.0) > 0.0).all(axis=1)
+    )
+    reduced = keeps[inv.reshape(-1)] & (elig & no_step).all(axis=1)
+    w_root = np.where(reduced[:, None], np.clip(w_root, w_lo, w_hi), w_root)
+    return {
+        "eligible": elig | capped,
+        "w_root": w_root,
+        "w_check": w_check,
+        "w_hi": w_hi,
+        "seed": seed,
+        "reduced": reduced,
+        "seg_points": seg_arg[prev],
+    }
+
+
+def _segment_argmax(pts, out: F64) -> INT:
+    """Index of the largest point of every segment, (K, R·S), of per-point values (K, Q)."""
+    n_q = pts.n_points
+    counts = np.diff(np.append(pts.seg_starts, n_q))
+    seg_max = np.maximum.reduceat(out, pts.seg_starts, axis=1)
+    cand = np.where(out == np.repeat(seg_max, counts, axis=1), np.arange(n_q), n_q)
+    return np.minimum.reduceat(cand, pts.seg_starts, axis=1)
+
+
+class _Model:
+    """Closed-form worst loss of each (sample, design) from its anchors' worst points.
+
+    The loss of point i at periphery W is c_i + 10·log10(1 + v²), c_i = N·L_sec + levels·L_p
+    + band select + deficit, v = max(a(r)·h_i, v_bf,i), r = 50·W/(Ropt·W) (as in
+    :func:`core.pa_design._pass`); the model takes the larger of the two anchors' worst points
+    when they share a section count (same segment) and the smaller otherwise (the section
+    count is chosen for the least loss). G(u) = u − ln W_req(e^u), u = ln W, rises with u
+    (module notes, step 2), so Newton's method kept inside a bracket finds its root.
+    """
+
+    def __init__(self, b, c, a_st, seg_arg, a_lo, a_hi, rr, p_k) -> None:
+        # The worst point of each anchor's chosen segment of the requested row.
+        seg_lo, seg_hi = a_st["seg"][a_lo, rr], a_st["seg"][a_hi, rr]
+        i1, i2 = seg_arg[a_lo, seg_lo], seg_arg[a_hi, seg_hi]
+        self.same_seg = seg_lo == seg_hi
+        kappa = np.log(10.0) / 10.0
+        const = b.band_select_db[rr] + a_st["deficit"][a_lo, rr]
+        self.points = [
+            (kappa * (c["net"][i] + const), kappa * c["l_p"][i], c["h"][i], c["v_bf"][i])
+            for i in (i1, i2)
+        ]
+        self.base = np.log(np.maximum(p_k, 1e-300)) - np.log(b.p1db_w_per_mm[rr])
+        self.k_r = LOAD_OHM / b.ropt_ohm_mm[rr]
+
+    def _take(self, sel) -> dict:
+        keys = ("k_r", "base", "same_seg")
+        out = {k: getattr(self, k)[sel] for k in keys}
+        out["points"] = [tuple(x[sel] for x in pt) for pt in self.points]
+        return out
+
+    @staticmethod
+    def _eval(m: dict, u: F64, lev: F64) -> tuple[F64, F64]:
+        """G and dG/du at u of the entries of ``m`` (:meth:`_take`)."""
+        r = m["k_r"] * np.exp(u)
         a = np.abs(r - 1.0) / (2.0 * np.sqrt(r))
         terms = []
-        for kc, h, vbf in model:
+        for kc, kl, h, vbf in m["points"]:
             av = a * h
-            v = np.maximum(av, vbf)
-            v2 = v * v
-            loss = kc + np.log1p(v2)
+            v2 = np.maximum(av, vbf) ** 2
+            loss = kc + lev * kl + np.log1p(v2)
+            # d ln(1 + v²)/du = h²(r² − 1)/(4r(1 + v²)) while a·h is above the floor.
             slope = (av > vbf) * (h * h) * (r * r - 1.0) / (4.0 * r * (1.0 + v2))
             terms.append((loss, slope))
         (l1, s1), (l2, s2) = terms
-        first = np.where(same_seg, l1 >= l2, l1 <= l2)
+        first = np.where(m["same_seg"], l1 >= l2, l1 <= l2)
         loss, slope = np.where(first, l1, l2), np.where(first, s1, s2)
-        g_val = u - base - loss
-        u_lo = np.where(g_val < 0.0, u, u_lo)
-        u_hi = np.where(g_val > 0.0, u, u_hi)
-        step = g_val / np.maximum(1.0 - slope, 1e-12)
-        nxt_u = u - step
-        # Bisect only when Newton leaves the bracket (at the root a step may round onto an end).
-        inside = (nxt_u >= u_lo) & (nxt_u <= u_hi)
-        u = np.where(inside, nxt_u, 0.5 * (u_lo + u_hi))
-        if (~elig | (inside & (np.abs(step) <= 1e-14))).all():  # W to 1e-14, far below _W_RTOL
-            break
-    w_root = np.exp(u)
-    # Past the cell limit nothing depends on W (the periphery is capped): W_req is constant,
-    # W* = W_req ∝ p, and a lower anchor beyond the limit shows that no W below it serves p.
-    capped = (
-        has
-        & (r_p == r_k)
-        & (r_n == r_k)
-        & (p_lo <= p_k)
-        & (p_lo > 0)
-        & ~a_sol.cells_ok[a_lo, gg]
-        & (w_lo > (b.max_cells * b.cell_max_mm)[b.starts][None, :])
-    )
-    w_root = np.where(capped, w_lo * p_k / np.where(p_lo > 0, p_lo, 1.0), w_root)
-    return {"eligible": elig | capped, "w_root": w_root, "w_hi": w_hi, "seed": seed}
+        return u - m["base"] - loss, 1.0 - slope
+
+    def g(self, u: F64, lev: F64, mask) -> F64:
+        """G(u) for the entries ``mask`` (0 elsewhere), (K, G)."""
+        out = np.zeros(mask.shape)
+        sel = np.nonzero(mask)
+        if sel[0].size:
+            out[sel] = self._eval(self._take(sel), u[sel], lev[sel])[0]
+        return out
+
+    def root(self, mask, u0, u_lo, u_hi, lev) -> F64:
+        """Root of G in [u_lo, u_hi] for the entries ``mask`` (u0 elsewhere), (K, G).
+
+        G must change sign on the interval (else the result is the end nearest the root).
+        """
+        out = np.array(u0, dtype=float, copy=True)
+        sel = np.nonzero(mask)
+        if not sel[0].size:
+            return out
+        m = self._take(sel)
+        lo, hi, lv = u_lo[sel], u_hi[sel], lev[sel]
+        u = np.clip(u0[sel], lo, hi)
+        for _ in range(_NEWTON_STEPS):
+            g_val, d = self._eval(m, u, lv)
+            lo = np.where(g_val < 0.0, u, lo)
+            hi = np.where(g_val > 0.0, u, hi)
+            step = g_val / np.maximum(d, 1e-12)
+            nxt_u = u - step
+            # Bisect only when Newton leaves the bracket (at the root a step may round onto an
+            # end); stop once W is settled to 1e-14, far below the search tolerance.
+            inside = (nxt_u >= lo) & (nxt_u <= hi)
+            u = np.where(inside, nxt_u, 0.5 * (lo + hi))
+            if (inside & (np.abs(step) <= 1e-14)).all():
+                break
+        out[sel] = u
+        return out
 
 
 def _combine(k_n: int, parts: list[tuple[NDArray[np.int64], Solution]]) -> Solution:
