@@ -356,6 +356,11 @@ def array_plan(study: Study, n_values: ArrayLike | None = None) -> pd.DataFrame:
         needs.append(sweep["p1db_elem_dbm"].to_numpy(dtype=np.float64))
     need_all = np.stack(needs)
     est = _sweep_p1db_per_band(study, need_all)
+    # Recurring cost of one PA over every row of a candidate at once (one cost chain each).
+    per_pa_all = np.empty(est["die_area_mm2"].shape)
+    for candidate in dict.fromkeys(est["candidate"]):
+        rows = est["candidate"] == candidate
+        per_pa_all[rows] = _pa_recurring_usd(study, str(candidate), est["die_area_mm2"][rows])
     cols: dict[str, list[np.ndarray]] = {c: [] for c in PLAN_COLUMNS}
     for b_i, band in enumerate(study.bands):
         need = need_all[b_i]
@@ -364,7 +369,7 @@ def array_plan(study: Study, n_values: ArrayLike | None = None) -> pd.DataFrame:
             if not np.array_equal(est["p1db_target_dbm"][r], need):
                 raise ValueError(f"sweep_p1db: rows for {candidate!r} do not match the targets")
             feasible = est["feasible"][r]
-            per_pa = _pa_recurring_usd(study, candidate, est["die_area_mm2"][r])
+            per_pa = per_pa_all[r]
             part = {
                 "band": np.full(n.shape, band.name, dtype=object),
                 "candidate": np.full(n.shape, candidate, dtype=object),

@@ -50,7 +50,7 @@ import numpy as np
 from numpy.typing import NDArray
 
 from core import rf
-from core.pa_model import LOAD_OHM, DesignBatch, Solution, chebyshev_scale
+from core.pa_model import LOAD_OHM, DesignBatch, Solution, chebyshev_scale, driver_periphery_sum
 from core.pa_points import ChosenPoints, point_coordinates, prune
 
 __all__ = ["prepare", "prune_points", "solve"]
@@ -556,9 +556,7 @@ def _finish(b: DesignBatch, c: dict, st: dict, passes: int) -> Solution:
     gamma_max = v_max / np.sqrt(1.0 + v_max * v_max)
     p_dev = b.p1db_w_per_mm[None, :] * w_r
     # Driver k (k = 1 … n − 1 counted back from the output) has W_out/ratio^k.
-    k = np.arange(1, max(int(nst_r.max()), 1), dtype=float)
-    pw = b.drive_ratio[None, :, None] ** (-k[None, None, :])
-    w_drv = w_r * np.where(k[None, None, :] <= nst_r[..., None] - 1, pw, 0.0).sum(axis=-1)
+    w_drv = w_r * driver_periphery_sum(b.drive_ratio, nst_r)
     dc_out = p_dev / b.eta[None, :]
     dc_drv = (b.vdd_v * b.driver_bias * b.i_max_a_per_mm)[None, :] * w_drv
     dc = dc_out + dc_drv

@@ -22,7 +22,7 @@ import numpy as np
 from numpy.typing import NDArray
 
 from core import rf
-from core.pa_model import LOAD_OHM, DesignBatch, Solution
+from core.pa_model import LOAD_OHM, DesignBatch, Solution, driver_periphery_sum
 
 __all__ = [
     "DC_PADS_PER_STAGE",
@@ -151,9 +151,7 @@ def _switches(b: DesignBatch, lp: LayoutParams, s: Solution) -> dict[str, F64]:
     scale = np.zeros(w_sw.shape)
     scale[:, on] = np.where(i <= n_on, r_on_rows ** ((n_on - i) / n_on), 0.0).sum(axis=-1)
     w_out_net = lp.m_elements[None, :] * w_sw * scale
-    k = np.arange(1, int(nst.max()) if nst.size else 1, dtype=float)
-    dr = b.drive_ratio[None, :, None]
-    drivers = np.where(k <= nst[..., None] - 1, dr ** (-k), 0.0).sum(axis=-1)
+    drivers = driver_periphery_sum(b.drive_ratio, nst)
     first = b.drive_ratio[None, :] ** (-(nst - 1.0))  # input network loads the first stage
     n_is = s.interstage_sections[g][None, :].astype(float)
     w_is = w_out_net * (n_is / n) * (drivers + first)

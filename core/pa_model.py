@@ -247,3 +247,32 @@ def chebyshev_scale(ratio):
     """
     r = np.asarray(ratio, dtype=float)
     return np.abs(r - 1.0) / (2.0 * np.sqrt(r))
+
+
+def driver_periphery_sum(drive_ratio, n_stages):
+    """Σ_{k=1}^{n−1} ρ^(−k): total driver periphery per mm of output stage, n stages.
+
+    Driver k (counted back from the output) has 1/ρ^k of the output periphery (ρ the drive
+    ratio). Summed in order from a per-row table of partial sums.
+
+    Parameters
+    ----------
+    drive_ratio : ndarray, (R,)
+        ρ of each row (> 0).
+    n_stages : ndarray of int, (K, R)
+        Stage count n ≥ 1 of each sample and row.
+
+    Returns
+    -------
+    ndarray, (K, R)
+
+    Examples
+    --------
+    >>> float(driver_periphery_sum(np.array([2.0]), np.array([[3]]))[0, 0])
+    0.75
+    """
+    n = np.asarray(n_stages, dtype=np.int64)
+    m = max(int(n.max()) - 1, 0) if n.size else 0
+    terms = np.asarray(drive_ratio, dtype=float)[:, None] ** -np.arange(1.0, m + 1.0)
+    table = np.concatenate([np.zeros((terms.shape[0], 1)), np.cumsum(terms, axis=1)], axis=1)
+    return table[np.arange(table.shape[0])[None, :], np.maximum(n - 1, 0)]

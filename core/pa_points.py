@@ -156,6 +156,23 @@ def _upper_hull(x: F64, y: F64) -> NDArray[np.bool_]:
     return keep
 
 
+def _pareto_2d(a: F64, h: F64) -> NDArray[np.bool_]:
+    """Rule 1 of :func:`prune` where L_sw ≡ 0: points no other is at least as large in both.
+
+    In the order (a descending, h descending, index ascending) every point that could
+    dominate i comes before it, and i is dominated exactly when one of those has h ≥ h_i:
+    i is kept when h_i exceeds the running maximum before it. Shapes (..., F).
+    """
+    idx = np.broadcast_to(np.arange(a.shape[-1]), a.shape)
+    order = np.lexsort((idx, -h, -a), axis=-1)
+    h_sorted = np.take_along_axis(h, order, axis=-1)
+    before = np.maximum.accumulate(h_sorted, axis=-1)
+    before = np.concatenate([np.full((*a.shape[:-1], 1), -np.inf), before[..., :-1]], axis=-1)
+    keep = np.empty(a.shape, dtype=bool)
+    np.put_along_axis(keep, order, h_sorted > before, axis=-1)
+    return keep
+
+
 def prune(pts: Points, lp: F64, lsw: F64, h: F64) -> Points:
     """Keep only the points that can be the worst case of any sizing request.
 
@@ -197,15 +214,21 @@ def prune(pts: Points, lp: F64, lsw: F64, h: F64) -> Points:
     n_f, n_s = pts.uniform, pts.n_sections
     a, c, h = (np.asarray(x, dtype=float).reshape(-1, n_s, n_f) for x in (lp, lsw, h))
     shape = a.shape
-    ge = np.ones((*shape, n_f), dtype=bool)
-    gt = np.zeros((*shape, n_f), dtype=bool)
-    for x in (a, c, h):
-        xi, xj = x[..., :, None], x[..., None, :]
-        ge &= xj >= xi
-        gt |= xj > xi
-    # [i, j] is True when j < i: of two identical points the earlier one is kept.
-    earlier = np.arange(n_f)[None, :] < np.arange(n_f)[:, None]
-    keep = ~(ge & (gt | earlier)).any(axis=-1)
+    hull_rows = ~(c > 0).any(axis=(1, 2))
+    keep = np.empty(shape, dtype=bool)
+    keep[hull_rows] = _pareto_2d(a[hull_rows], h[hull_rows])
+    sw = ~hull_rows
+    if sw.any():
+        a3, c3, h3 = a[sw], c[sw], h[sw]
+        ge = np.ones((*a3.shape, n_f), dtype=bool)
+        gt = np.zeros((*a3.shape, n_f), dtype=bool)
+        for x in (a3, c3, h3):
+            xi, xj = x[..., :, None], x[..., None, :]
+            ge &= xj >= xi
+            gt |= xj > xi
+        # [i, j] is True when j < i: of two identical points the earlier one is kept.
+        earlier = np.arange(n_f)[None, :] < np.arange(n_f)[:, None]
+        keep[sw] = ~(ge & (gt | earlier)).any(axis=-1)
     # Rule 2: chord between the anchors j (largest L_p) and k (largest L_sw) of the max-h points.
     top = h >= h.max(axis=-1, keepdims=True) * (1.0 - 1e-9)
     j = np.where(top, a, -np.inf).argmax(axis=-1)[..., None]
@@ -223,7 +246,6 @@ def prune(pts: Points, lp: F64, lsw: F64, h: F64) -> Points:
     idx = np.arange(n_f)
     anchor = (idx == j) | (idx == k)
     keep &= ~((lo <= hi) & (h <= h_anchor) & ~anchor)
-    hull_rows = ~(c > 0).any(axis=(1, 2))
     y = np.log(np.maximum(h, 1e-300))  # h = 0: a far-left stand-in, ψ there ≥ ψ(0)
     for r in np.flatnonzero(hull_rows):
         for s in range(n_s):

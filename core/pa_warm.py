@@ -64,7 +64,7 @@ INT = NDArray[np.int64]
 #: Relative shrink of a seed periphery: it stays below the neighbour's smallest feasible W.
 SEED_SHRINK = 1e-9
 #: Cap of the Newton steps on the model (quadratic convergence from the interpolated start:
-#: 3–4 reach the rounding level, where the loop stops).
+#: 2–3 reach the rounding level, where the loop stops).
 _NEWTON_STEPS = 12
 #: Largest normalised Chebyshev response for which step 2 of the module notes holds.
 _H_MAX = np.sqrt(2.0)
@@ -309,14 +309,17 @@ def _brackets(b, c, p_req, a_idx, rest, a_st) -> dict[str, F64]:
     w_root = np.where(capped, w_lo * p_k / np.where(p_lo > 0, p_lo, 1.0), np.exp(u))
     w_check = np.where(capped, 0.0, w_check)
 
-    # Module notes, step 4: per bracket, every segment's worst point the same at both
-    # anchors, every point's Bode–Fano floor in the same state at both and no row's ratio
-    # crossing 1 (so a(r) moves one way): the loss difference of two points of a segment,
-    # c_i − c_q + 10·log10((1 + a²h_i²)/(1 + a²h_q²)) or one of them floored (constant), is
-    # then monotone in a, and the worst point of each segment is the same across the bracket.
-    floored = chebyshev_scale(a_st["ratio"])[:, pts.row] * c["h"] <= c["v_bf"]
+    # Module notes, step 4: per bracket, every segment's worst point i the same at both
+    # anchors, i's Bode–Fano floor in the same state at both, and no row's ratio crossing 1
+    # (so a(r) moves one way). Every point's loss is then max(f_q(a), k_q) with f_q =
+    # c_q + 10·log10(1 + a²h_q²) monotone in a and k_q its floored constant; f_i − f_q =
+    # c_i − c_q + 10·log10((1 + a²h_i²)/(1 + a²h_q²)) is monotone in a too, so i's loss (f_i
+    # or k_i throughout), at least every other point's at both ends, stays at least f_q and
+    # k_q across the bracket: i is the segment's worst point at every periphery between.
     ub, inv = np.unique(pos, return_inverse=True)  # brackets, by their upper anchor
     r_a = a_st["ratio"]
+    a_arg = np.repeat(chebyshev_scale(r_a), pts.n_sections, axis=1) * c["h"][seg_arg]
+    floored = a_arg <= c["v_bf"][seg_arg]
     keeps = (
         (seg_arg[ub - 1] == seg_arg[ub]).all(axis=1)
         & (floored[ub - 1] == floored[ub]).all(axis=1)
@@ -369,36 +372,39 @@ class _Model:
         self.base = np.log(np.maximum(p_k, 1e-300)) - np.log(b.p1db_w_per_mm[rr])
         self.k_r = LOAD_OHM / b.ropt_ohm_mm[rr]
 
-    def _take(self, sel) -> dict:
-        keys = ("k_r", "base", "same_seg")
-        out = {k: getattr(self, k)[sel] for k in keys}
-        out["points"] = [tuple(x[sel] for x in pt) for pt in self.points]
-        return out
+    def _take(self, sel, lev: F64) -> dict:
+        """The entries ``sel`` with their levels ``lev``: constants folded, squares taken."""
+        m = {"k_r": self.k_r[sel], "base": self.base[sel], "same_seg": self.same_seg[sel]}
+        m["points"] = [
+            (kc[sel] + lev * kl[sel], h[sel], h[sel] * h[sel], vbf[sel])
+            for kc, kl, h, vbf in self.points
+        ]
+        return m
 
     @staticmethod
-    def _eval(m: dict, u: F64, lev: F64) -> tuple[F64, F64]:
+    def _eval(m: dict, u: F64) -> tuple[F64, F64]:
         """G and dG/du at u of the entries of ``m`` (:meth:`_take`)."""
         r = m["k_r"] * np.exp(u)
         a = np.abs(r - 1.0) / (2.0 * np.sqrt(r))
+        d_r = (r * r - 1.0) / (4.0 * r)
         terms = []
-        for kc, kl, h, vbf in m["points"]:
+        for c0, h, h2, vbf in m["points"]:
             av = a * h
-            v2 = np.maximum(av, vbf) ** 2
-            loss = kc + lev * kl + np.log1p(v2)
+            v = np.maximum(av, vbf)
+            v2 = v * v
             # d ln(1 + v²)/du = h²(r² − 1)/(4r(1 + v²)) while a·h is above the floor.
-            slope = (av > vbf) * (h * h) * (r * r - 1.0) / (4.0 * r * (1.0 + v2))
-            terms.append((loss, slope))
+            slope = np.where(av > vbf, h2 * d_r / (1.0 + v2), 0.0)
+            terms.append((c0 + np.log1p(v2), slope))
         (l1, s1), (l2, s2) = terms
         first = np.where(m["same_seg"], l1 >= l2, l1 <= l2)
-        loss, slope = np.where(first, l1, l2), np.where(first, s1, s2)
-        return u - m["base"] - loss, 1.0 - slope
+        return u - m["base"] - np.where(first, l1, l2), 1.0 - np.where(first, s1, s2)
 
     def g(self, u: F64, lev: F64, mask) -> F64:
         """G(u) for the entries ``mask`` (0 elsewhere), (K, G)."""
         out = np.zeros(mask.shape)
         sel = np.nonzero(mask)
         if sel[0].size:
-            out[sel] = self._eval(self._take(sel), u[sel], lev[sel])[0]
+            out[sel] = self._eval(self._take(sel, lev[sel]), u[sel])[0]
         return out
 
     def root(self, mask, u0, u_lo, u_hi, lev) -> F64:
@@ -410,20 +416,22 @@ class _Model:
         sel = np.nonzero(mask)
         if not sel[0].size:
             return out
-        m = self._take(sel)
-        lo, hi, lv = u_lo[sel], u_hi[sel], lev[sel]
+        m = self._take(sel, lev[sel])
+        lo, hi = u_lo[sel], u_hi[sel]
         u = np.clip(u0[sel], lo, hi)
         for _ in range(_NEWTON_STEPS):
-            g_val, d = self._eval(m, u, lv)
+            g_val, d = self._eval(m, u)
             lo = np.where(g_val < 0.0, u, lo)
             hi = np.where(g_val > 0.0, u, hi)
             step = g_val / np.maximum(d, 1e-12)
             nxt_u = u - step
             # Bisect only when Newton leaves the bracket (at the root a step may round onto an
-            # end); stop once W is settled to 1e-14, far below the search tolerance.
+            # end). A step below 1e-7 leaves an error of order its square (quadratic
+            # convergence), far below the search tolerance; the caller's check of the full
+            # chain at the root catches any entry where that does not hold.
             inside = (nxt_u >= lo) & (nxt_u <= hi)
             u = np.where(inside, nxt_u, 0.5 * (lo + hi))
-            if (inside & (np.abs(step) <= 1e-14)).all():
+            if (inside & (np.abs(step) <= 1e-7)).all():
                 break
         out[sel] = u
         return out

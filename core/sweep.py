@@ -71,7 +71,7 @@ def _solve_part(full: DesignBatch, p_req: NDArray[np.float64]) -> tuple[DesignBa
 
 
 #: Every ``_ANCHOR_STEP``-th sample is solved cold and brackets its neighbours.
-_ANCHOR_STEP = 16
+_ANCHOR_STEP = 32
 
 
 def solve_warm(b: DesignBatch, p_req: NDArray[np.float64]) -> Solution:

@@ -331,3 +331,27 @@ def test_sweep_equals_one_solve_per_target_on_the_full_grid():
                 & (got.p1db_target_dbm == xt)
             ].iloc[0]
             assert row.dc_power_w == pytest.approx(dc, rel=1e-9), (cand.name, r, xt)
+
+
+@settings(max_examples=60, deadline=None)
+@given(
+    st.lists(
+        st.tuples(st.integers(0, 4), st.integers(0, 4)), min_size=1, max_size=30
+    )  # small integers: many ties and duplicates
+)
+def test_two_coordinate_pareto_equals_pairwise_dominance(pts):
+    # Rule 1 of core.pa_points.prune on rows without switch loss: a point is dropped when
+    # another is ≥ in both coordinates and > in one, or identical and earlier. Reference: the
+    # definition applied pair by pair.
+    from core.pa_points import _pareto_2d
+
+    a = np.array([p[0] for p in pts], dtype=float)
+    h = np.array([p[1] for p in pts], dtype=float)
+    expect = np.ones(a.size, dtype=bool)
+    for i in range(a.size):
+        for j in range(a.size):
+            if j == i or a[j] < a[i] or h[j] < h[i]:
+                continue
+            if a[j] > a[i] or h[j] > h[i] or j < i:
+                expect[i] = False
+    np.testing.assert_array_equal(_pareto_2d(a[None, :], h[None, :])[0], expect)

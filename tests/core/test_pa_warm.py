@@ -1,0 +1,204 @@
+"""The warm-started sweep solve (core.pa_warm): its shortcuts are used, exact, and well founded.
+
+The reference is the solver's cold path (:func:`core.pa_design.solve`, every sample searched
+from its proven lower bound), itself checked against evaluate() and the full grid in
+test_estimate*.py. The shortcuts only change how the least feasible periphery is found, so
+every result must agree within the search tolerance (1e-10 relative): here 1e-9.
+"""
+
+import math
+
+import numpy as np
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from core import pa_warm, rf, sweep
+from core.architectures import build_plan
+from core.estimate import sweep_p1db_per_band
+from core.link import array_sweep
+from core.link_plan import _worst_case_hz, link_inputs
+from core.pa_design import prune_points, solve
+from core.pa_model import chebyshev_scale
+from core.resources import demo_path
+from core.study import load_study
+from core.study.model import CandidateKind
+
+FIELDS = ("w_out_mm", "dc_out_w", "dc_drivers_w", "worst_pae")
+DB_FIELDS = ("worst_p1db_dbm", "worst_gain_db")
+#: 1e-9 relative in power is 10·log10(1 + 1e-9) = 4.3e-9 dB.
+DB_TOL = 10.0 * np.log10(1.0 + 1e-9)
+DISCRETE = ("n_cells", "n_sections", "n_stages", "cells_ok", "gain_found", "levels")
+
+
+def _grouped(name):
+    """A demo's wideband/switched rows (pruned), its row bands and array-sizing requests."""
+    study = load_study(demo_path(name))
+    plan = build_plan(study)
+    kinds = np.array([c.kind for c in plan.candidates], dtype=object)[plan.row_cand]
+    rows = np.flatnonzero(kinds != CandidateKind.SEPARATE)
+    b, _, _ = sweep._subset(plan, rows)
+    n = np.arange(1, 1025)
+    x = np.stack(
+        [
+            array_sweep(_worst_case_hz(bd, link_inputs(bd)), link_inputs(bd), n)[
+                "p1db_elem_dbm"
+            ].to_numpy()
+            for bd in study.bands
+        ]
+    )
+    return prune_points(b), plan.row_band[rows], x + study.estimator.p1db_margin_db
+
+
+def _requests(band, x_dbm):
+    """(band, target)-major samples, each sizing one band's rows (as core.sweep._part)."""
+    n_b, n_t = x_dbm.shape
+    p = np.asarray(rf.dbm_to_w(x_dbm))
+    req = np.where(band[None, None, :] == np.arange(n_b)[:, None, None], p[:, :, None], 0.0)
+    return req.reshape(n_b * n_t, band.size)
+
+
+def _assert_same(warm, cold):
+    for name in FIELDS:
+        np.testing.assert_allclose(
+            getattr(warm, name), getattr(cold, name), rtol=1e-9, atol=0.0, err_msg=name
+        )
+    for name in DB_FIELDS:
+        np.testing.assert_allclose(
+            getattr(warm, name), getattr(cold, name), rtol=0.0, atol=DB_TOL, err_msg=name
+        )
+    for name in DISCRETE:
+        np.testing.assert_array_equal(getattr(warm, name), getattr(cold, name), err_msg=name)
+    # |Γ|m ∝ |r − 1| is ill-conditioned near r = 1: compared absolutely.
+    np.testing.assert_allclose(warm.gamma_max, cold.gamma_max, rtol=0.0, atol=1e-9)
+
+
+@pytest.fixture(scope="module", params=["harbour-small-cell", "rural-fwa-terminal"])
+def demo(request):
+    return _grouped(request.param)
+
+
+class _Count:
+    """Samples handed to each way of settling them (wraps the module's own functions)."""
+
+    def __init__(self, monkeypatch):
+        self.reduced = self.full = self.searched = 0
+        reduced, full, search = pa_warm._reduced_pass, pa_warm._pass, pa_warm._least_feasible
+
+        def count_reduced(b, c, w, req_db, idx):
+            self.reduced += w.shape[0]
+            return reduced(b, c, w, req_db, idx)
+
+        def count_full(b, c, w, req_db):
+            self.full += w.shape[0]
+            return full(b, c, w, req_db)
+
+        def count_search(b, c, p, w):
+            self.searched += p.shape[0]
+            return search(b, c, p, w)
+
+        monkeypatch.setattr(pa_warm, "_reduced_pass", count_reduced)
+        monkeypatch.setattr(pa_warm, "_pass", count_full)
+        monkeypatch.setattr(pa_warm, "_least_feasible", count_search)
+
+
+def test_full_array_sweep_matches_cold_and_takes_the_short_paths(demo, monkeypatch):
+    safe, band, x = demo
+    p_req = _requests(band, x)
+    cold = solve(safe, p_req)
+    count = _Count(monkeypatch)
+    warm = pa_warm.solve_warm(safe, p_req, 16)
+    _assert_same(warm, cold)
+    k = p_req.shape[0]
+    # The point of the module: most samples settled by the one-point-per-segment pass, few
+    # searched (the anchors, about 10 % here, and next to none beyond them).
+    assert count.reduced > 0.7 * k
+    assert count.searched < 0.15 * k
+
+
+def test_targets_past_the_cell_limit_match_cold(demo, monkeypatch):
+    # Falling targets from 48 to 30 dBm: most designs need more unit cells than the card
+    # combines, where the periphery is capped and W* ∝ p (pa_warm._brackets, "capped").
+    safe, band, _ = demo
+    x = np.linspace(48.0, 30.0, 200)
+    p_req = _requests(band, np.stack([x] * (band.max() + 1)))
+    cold = solve(safe, p_req)
+    assert (~cold.cells_ok).mean() > 0.3
+    count = _Count(monkeypatch)
+    _assert_same(pa_warm.solve_warm(safe, p_req, 16), cold)
+    assert count.searched < 0.5 * p_req.shape[0]
+
+
+@pytest.fixture(scope="module")
+def harbour():
+    return _grouped("harbour-small-cell")
+
+
+@settings(max_examples=10, deadline=None)
+@given(st.lists(st.floats(-5.0, 45.0), min_size=40, max_size=120), st.booleans())
+def test_any_targets_match_cold(harbour, targets, ordered):
+    # Unsorted and repeated targets too: a shortcut only applies where the anchors bracket.
+    safe, band, _ = harbour
+    t = np.sort(targets)[::-1] if ordered else np.asarray(targets)
+    p_req = _requests(band, np.stack([t, t[::-1]]))
+    _assert_same(pa_warm.solve_warm(safe, p_req, 8), solve(safe, p_req))
+
+
+def test_sweep_equals_cold_end_to_end(monkeypatch):
+    # Through sweep_p1db_per_band, separate and grouped parts, with and without warm starts.
+    study = load_study(demo_path("harbour-small-cell"))
+    _, _, x = _grouped("harbour-small-cell")
+    x = x - study.estimator.p1db_margin_db
+    warm = sweep_p1db_per_band(study, x)
+    monkeypatch.setattr(sweep, "_ANCHOR_STEP", 10**9)  # every sample searched cold
+    cold = sweep_p1db_per_band(study, x)
+    np.testing.assert_array_equal(warm["feasible"], cold["feasible"])
+    np.testing.assert_array_equal(warm["reason"], cold["reason"])
+    for name in ("dc_power_w", "die_area_mm2"):
+        np.testing.assert_allclose(warm[name], cold[name], rtol=1e-9, atol=0.0, err_msg=name)
+
+
+@settings(max_examples=200, deadline=None)
+@given(
+    r=st.floats(1e-3, 1e3),
+    h=st.floats(0.0, math.sqrt(2.0)),
+)
+def test_point_loss_rises_slower_than_the_periphery(r, h):
+    # Module notes, step 2: with v = a(r)·h, a = |r − 1|/(2√r) and r ∝ W,
+    # d ln(1 + v²)/d ln W = h²(r² − 1)/(4r(1 + v²)) < 1 for h ≤ √2, so W·10^(−loss/10)
+    # rises with W. Checked against a central difference of the definition (calculus).
+    def f(x):
+        v = float(chebyshev_scale(x)) * h
+        return math.log1p(v * v)
+
+    v = float(chebyshev_scale(r)) * h
+    slope = h * h * (r * r - 1.0) / (4.0 * r * (1.0 + v * v))
+    assert slope < 1.0
+    if abs(r - 1.0) > 1e-3:
+        d = 1e-6
+        numeric = (f(r * math.exp(d)) - f(r * math.exp(-d))) / (2 * d)
+        assert slope == pytest.approx(numeric, rel=1e-5, abs=1e-9)
+
+
+def test_worst_figures_are_at_the_point_of_largest_loss():
+    # core.pa_design._finish takes worst gain, P1dB and PAE from the row's largest loss; on
+    # the full grid the per-point curves give them directly (minimum over the band).
+    study = load_study(demo_path("harbour-small-cell"))
+    plan = build_plan(study)
+    sol = solve(plan.batch, np.asarray(rf.dbm_to_w([[26.0] * plan.batch.n_rows])))
+    for field, curve in (
+        ("worst_gain_db", "gain_db"),
+        ("worst_p1db_dbm", "p1db_dbm"),
+        ("worst_pae", "pae"),
+    ):
+        np.testing.assert_allclose(
+            getattr(sol, field), sol.curves[curve].min(axis=-1), rtol=1e-12, err_msg=field
+        )
+    # and the equal-ripple maximum |Γ| of each row's network at its ratio and section count,
+    # against core.rf's closed form (Pozar §5.7, exact insertion-loss form).
+    n_sec = sol.n_sections[:, plan.batch.group]
+    np.testing.assert_allclose(
+        sol.gamma_max,
+        rf.chebyshev_max_reflection(sol.ratio, n_sec, plan.batch.bw_frac[None, :]),
+        rtol=1e-12,
+    )
