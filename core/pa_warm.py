@@ -22,8 +22,8 @@ pass of the chain:
    such functions (Bode–Fano floors only hold the loss constant). The request then meets h
    at one periphery only, and that periphery is W*(p).
 3. **Model root.** The loss of the anchors' worst points (the arg-max point of each anchor's
-   chosen section count) gives a closed-form h; Newton's method in ln W on it, kept inside
-   the bracket, finds its root from the log-linear interpolation between the anchors.
+   chosen section count) gives a closed-form h, whose root W_req(W) = W is a quadratic in W
+   (:meth:`_Model.root`).
 4. **Check.** One full pass of the chain at that root (every point, every section count)
    confirms it: when the sample is feasible there and its required periphery equals the root
    within the search tolerance, the root is the fixed point of the full chain, hence W*(p)
@@ -36,7 +36,7 @@ anchor's periphery (or the checked root for the designs that passed).
 
 from __future__ import annotations
 
-from dataclasses import fields, replace
+from dataclasses import replace
 
 import numpy as np
 from numpy.typing import NDArray
@@ -63,9 +63,6 @@ INT = NDArray[np.int64]
 
 #: Relative shrink of a seed periphery: it stays below the neighbour's smallest feasible W.
 SEED_SHRINK = 1e-9
-#: Cap of the Newton steps on the model (quadratic convergence from the interpolated start:
-#: 2–3 reach the rounding level, where the loop stops).
-_NEWTON_STEPS = 12
 #: Largest normalised Chebyshev response for which step 2 of the module notes holds.
 _H_MAX = np.sqrt(2.0)
 
@@ -284,29 +281,26 @@ def _brackets(b, c, p_req, a_idx, rest, a_st) -> dict[str, F64]:
     pts = b.points
     seg_arg = _segment_argmax(pts, a_st["out"])
     model = _Model(b, c, a_st, seg_arg, a_lo, a_hi, rr, p_k)
-    # Start: log-linear interpolation of W* in ln p between the anchors.
-    l_lo, l_hi = np.log(np.maximum(w_lo, 1e-300)), np.log(np.maximum(w_hi, 1e-300))
-    l_step = np.log(np.minimum(w_step, w_hi))
-    t = np.log(p_k / np.where(p_lo > 0, p_lo, 1.0)) / np.log(
-        np.where(p_hi > p_lo, p_hi / np.where(p_lo > 0, p_lo, 1.0), np.e)
-    )
-    u0 = l_lo + np.clip(np.where(p_hi > p_lo, t, 0.0), 0.0, 1.0) * (l_hi - l_lo)
-    # Past the step when the model cannot reach p on piece A, below it: the request is then
-    # served above it only if the full chain is infeasible at the step (checked by the caller).
-    stepped = elig & (level_step | cap_step)
-    g_step = model.g(l_step, lev_lo, stepped)
-    beyond = stepped & (g_step < 0.0)
+    w_end = np.minimum(w_step, w_hi)
     # Piece A, below the step (the whole bracket without one), at the lower anchor's levels.
-    u = model.root(elig & ~beyond, np.minimum(u0, l_step), l_lo - 1e-9, l_step + 1e-9, lev_lo)
-    u_b = model.root(beyond & level_step, np.maximum(u0, l_step), l_step, l_hi + 1e-9, lev_hi)
-    # Past the cell limit nothing depends on W (the periphery is capped): W* = W_req(cap).
-    u = np.where(beyond, np.where(cap_step, l_step - g_step, u_b), u)
+    # Its model root past the step's periphery means p is out of reach below the step: it is
+    # then served above the step only if the full chain is infeasible at the step (checked
+    # by the caller).
+    w_a = model.root(lev_lo)
+    beyond = elig & (level_step | cap_step) & (w_a > w_end)
+    # Past a split step: the model at the upper anchor's levels. Past the cell limit nothing
+    # depends on W (the periphery is capped): W* = W_req(cap).
+    w_b = w_a
+    if beyond.any():
+        w_cap = model.required(w_end, lev_lo)
+        w_b = np.where(cap_step, w_cap, np.maximum(model.root(lev_hi), w_end))
+    w_model = np.where(beyond, w_b, np.clip(w_a, w_lo, w_end))
     w_check = np.where(beyond, np.minimum(w_step, w_hi), 0.0)
 
     # Both anchors past the cell limit: W_req is constant past it, W* = W_req ∝ p, and the
     # lower anchor shows that no W below the limit serves p.
     capped = bracketed & ~ok_lo & ~ok_hi & (w_lo > cap)
-    w_root = np.where(capped, w_lo * p_k / np.where(p_lo > 0, p_lo, 1.0), np.exp(u))
+    w_root = np.where(capped, w_lo * p_k / np.where(p_lo > 0, p_lo, 1.0), w_model)
     w_check = np.where(capped, 0.0, w_check)
 
     # Module notes, step 4: per bracket, every segment's worst point i the same at both
@@ -355,7 +349,7 @@ class _Model:
     :func:`core.pa_design._pass`); the model takes the larger of the two anchors' worst points
     when they share a section count (same segment) and the smaller otherwise (the section
     count is chosen for the least loss). G(u) = u − ln W_req(e^u), u = ln W, rises with u
-    (module notes, step 2), so Newton's method kept inside a bracket finds its root.
+    (module notes, step 2), so it has one root, found in closed form (:meth:`root`).
     """
 
     def __init__(self, b, c, a_st, seg_arg, a_lo, a_hi, rr, p_k) -> None:
@@ -372,83 +366,38 @@ class _Model:
         self.base = np.log(np.maximum(p_k, 1e-300)) - np.log(b.p1db_w_per_mm[rr])
         self.k_r = LOAD_OHM / b.ropt_ohm_mm[rr]
 
-    def _take(self, sel, lev: F64) -> dict:
-        """The entries ``sel`` with their levels ``lev``: constants folded, squares taken."""
-        m = {"k_r": self.k_r[sel], "base": self.base[sel], "same_seg": self.same_seg[sel]}
-        m["points"] = [
-            (kc[sel] + lev * kl[sel], h[sel], h[sel] * h[sel], vbf[sel])
-            for kc, kl, h, vbf in self.points
-        ]
-        return m
+    def _terms(self, lev: F64):
+        """Per anchor point: E = e^(base + c_i) (W_req of a matched point), h², v_bf²."""
+        for c0, kl, h, vbf in self.points:
+            yield np.exp(self.base + c0 + lev * kl), h * h, vbf * vbf
 
-    @staticmethod
-    def _eval(m: dict, u: F64) -> tuple[F64, F64]:
-        """G and dG/du at u of the entries of ``m`` (:meth:`_take`)."""
-        r = m["k_r"] * np.exp(u)
-        a = np.abs(r - 1.0) / (2.0 * np.sqrt(r))
-        d_r = (r * r - 1.0) / (4.0 * r)
-        terms = []
-        for c0, h, h2, vbf in m["points"]:
-            av = a * h
-            v = np.maximum(av, vbf)
-            v2 = v * v
-            # d ln(1 + v²)/du = h²(r² − 1)/(4r(1 + v²)) while a·h is above the floor.
-            slope = np.where(av > vbf, h2 * d_r / (1.0 + v2), 0.0)
-            terms.append((c0 + np.log1p(v2), slope))
-        (l1, s1), (l2, s2) = terms
-        first = np.where(m["same_seg"], l1 >= l2, l1 <= l2)
-        return u - m["base"] - np.where(first, l1, l2), 1.0 - np.where(first, s1, s2)
+    def _combine(self, x1: F64, x2: F64) -> F64:
+        return np.where(self.same_seg, np.maximum(x1, x2), np.minimum(x1, x2))
 
-    def g(self, u: F64, lev: F64, mask) -> F64:
-        """G(u) for the entries ``mask`` (0 elsewhere), (K, G)."""
-        out = np.zeros(mask.shape)
-        sel = np.nonzero(mask)
-        if sel[0].size:
-            out[sel] = self._eval(self._take(sel, lev[sel]), u[sel])[0]
-        return out
+    def required(self, w: F64, lev: F64) -> F64:
+        """The model's W_req at periphery ``w``, (K, G)."""
+        r = self.k_r * w
+        a2 = (r - 1.0) ** 2 / (4.0 * r)
+        x1, x2 = (e * (1.0 + np.maximum(a2 * h2, v2)) for e, h2, v2 in self._terms(lev))
+        return self._combine(x1, x2)
 
-    def root(self, mask, u0, u_lo, u_hi, lev) -> F64:
-        """Root of G in [u_lo, u_hi] for the entries ``mask`` (u0 elsewhere), (K, G).
+    def root(self, lev: F64) -> F64:
+        """The model's W* (W_req(W) = W) in closed form, (K, G); inf where there is none.
 
-        G must change sign on the interval (else the result is the end nearest the root).
+        Matched (v = a·h): W = E·(1 + h²(kW − 1)²/(4kW)), k = 50/(Ropt·W), is the quadratic
+        k(4 − E·h²·k)·W² − 2kE(2 − h²)·W − E·h² = 0, whose one positive root (taken without
+        cancellation, h² < 2) exists when E·h²·k < 4; on the Bode–Fano floor W = E·(1 + v_bf²).
+        A point's loss is the larger of the two, so its G is the smaller and its root the
+        larger; of two points the larger loss (same segment) gives the larger root, the
+        smaller loss (two section counts, the better one chosen) the smaller.
         """
-        out = np.array(u0, dtype=float, copy=True)
-        sel = np.nonzero(mask)
-        if not sel[0].size:
-            return out
-        m = self._take(sel, lev[sel])
-        lo, hi = u_lo[sel], u_hi[sel]
-        u = np.clip(u0[sel], lo, hi)
-        for _ in range(_NEWTON_STEPS):
-            g_val, d = self._eval(m, u)
-            lo = np.where(g_val < 0.0, u, lo)
-            hi = np.where(g_val > 0.0, u, hi)
-            step = g_val / np.maximum(d, 1e-12)
-            nxt_u = u - step
-            # Bisect only when Newton leaves the bracket (at the root a step may round onto an
-            # end). A step below 1e-7 leaves an error of order its square (quadratic
-            # convergence), far below the search tolerance; the caller's check of the full
-            # chain at the root catches any entry where that does not hold.
-            inside = (nxt_u >= lo) & (nxt_u <= hi)
-            u = np.where(inside, nxt_u, 0.5 * (lo + hi))
-            if (inside & (np.abs(step) <= 1e-7)).all():
-                break
-        out[sel] = u
-        return out
-
-
-def _combine(k_n: int, parts: list[tuple[NDArray[np.int64], Solution]]) -> Solution:
-    """One solution of K samples from parts (sample indices, solution of those samples)."""
-    first = parts[0][1]
-    k_0 = parts[0][0].size
-    changes = {}
-    for f in fields(first):
-        x = getattr(first, f.name)
-        if isinstance(x, np.ndarray) and x.ndim >= 2 and x.shape[0] == k_0:
-            kinds = [getattr(s, f.name) for _, s in parts]
-            out = np.empty((k_n, *x.shape[1:]), dtype=np.result_type(*kinds))
-            for (idx, _), v in zip(parts, kinds, strict=True):
-                out[idx] = v
-            changes[f.name] = out
-    passes = max(s.passes for _, s in parts)
-    return replace(first, **changes, curves=None, passes=passes)
+        k = self.k_r
+        roots = []
+        for e, h2, v2 in self._terms(lev):
+            qa = k * (4.0 - e * h2 * k)
+            qb = 2.0 * k * e * (2.0 - h2)
+            disc = np.sqrt(qb * qb + 4.0 * qa * e * h2)
+            with np.errstate(divide="ignore", invalid="ignore"):
+                matched = np.where(qa > 0.0, (qb + disc) / (2.0 * qa), np.inf)
+            roots.append(np.maximum(matched, e * (1.0 + v2)))
+        return self._combine(*roots)
