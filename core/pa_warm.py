@@ -2,32 +2,38 @@
 
 :func:`solve_warm` gives the results of :func:`core.pa_design.solve` for K samples whose
 designs each carry one request, ordered along the sample axis (array sizing's targets fall
-with N). Every ``step``-th sample (an *anchor*) is solved by the periphery search of
-:func:`core.pa_design.solve`. A sample between two anchors is then usually settled in one
-pass of the chain:
+with N). The *anchors* — every ``step``-th sample, the samples around a change of the
+requested rows, and every sample whose request enters a new half-octave — are solved by the
+periphery search of :func:`core.pa_design.solve`. A sample between two anchors is then
+usually settled by one cheap evaluation of the chain:
 
 1. **Bracket.** With one requested row per design the section and stage choices at a
    periphery W do not depend on the request's size, and the design is feasible for request p
    exactly when its worst deliverable P1dB h(W) (the RF-port P1dB at W) is ≥ p. So the least
    feasible periphery W*(p) = min{W : h(W) ≥ p} rises with p, and the anchors on either side
    bound it: W*(p_lo) ≤ W*(p) ≤ W*(p_hi).
-2. **Monotone inside.** On that bracket h is continuous and strictly increasing when the
-   combiner's split levels are the same at both ends (they only rise with W), the driver
-   deficit cannot switch on or off (fixed stages, a one-stage design impossible by the gain
-   target, or no deficit at all), no cell limit is reached, and every in-band point has
-   h_N ≤ √2. Proof sketch: at fixed decisions each point's loss is c_i + 10·log10(1 + v²),
-   v = a(r)·h_N, a = |r − 1|/(2√r), r ∝ W, and d ln(1 + v²)/d ln W = h_N²(r² − 1)/
-   (4r(1 + v²)) < 1 when h_N² < 2r/(r − 1) — true for h_N ≤ √2 — so W·10^(−loss/10) rises
-   with W at every point; h is a minimum over points and a maximum over section counts of
-   such functions (Bode–Fano floors only hold the loss constant). The request then meets h
-   at one periphery only, and that periphery is W*(p).
+2. **Monotone pieces.** h is continuous and strictly increasing wherever the combiner's split
+   levels are constant, the driver deficit cannot switch on or off (fixed stages, a one-stage
+   design impossible by the gain target, or no deficit at all), no cell limit is reached,
+   and every in-band point has h_N ≤ √2. Proof sketch: at fixed decisions each point's loss
+   is c_i + 10·log10(1 + v²), v = a(r)·h_N, a = |r − 1|/(2√r), r ∝ W, and
+   d ln(1 + v²)/d ln W = h_N²(r² − 1)/(4r(1 + v²)) < 1 when h_N² < 2r/(r − 1) — true for
+   h_N ≤ √2 — so W·10^(−loss/10) rises with W at every point; h is a minimum over points and
+   a maximum over section counts of such functions (Bode–Fano floors only hold the loss
+   constant). On a piece the request meets h at one periphery only. A bracket may hold one
+   step of h (one more split level, where h drops, or the cell limit, past which it is
+   constant): the root lies on the first piece that reaches p, and a root past the step is
+   W*(p) only if the chain is infeasible at the step, which is checked.
 3. **Model root.** The loss of the anchors' worst points (the arg-max point of each anchor's
    chosen section count) gives a closed-form h, whose root W_req(W) = W is a quadratic in W
    (:meth:`_Model.root`).
-4. **Check.** One full pass of the chain at that root (every point, every section count)
-   confirms it: when the sample is feasible there and its required periphery equals the root
-   within the search tolerance, the root is the fixed point of the full chain, hence W*(p)
-   by step 2, and the pass is the sample's result.
+4. **Check.** The chain is evaluated at that root, and the root is the sample's W* when the
+   required periphery there equals it within the search tolerance (the fixed point of the
+   full chain, hence W*(p) by step 2). Where, across the bracket, every section count keeps
+   its worst point (same at both anchors, that point's Bode–Fano floor in the same state at
+   both, no ratio crossing 1), that point alone gives each section count's exact loss, so the
+   check evaluates one point per section count (:func:`core.pa_design._reduced_pass`);
+   elsewhere it is a full pass over every point.
 
 A sample for which any design fails steps 2–4 is searched as in
 :func:`core.pa_design.solve`, from the larger of its proven lower bound and the lower
@@ -75,8 +81,8 @@ def one_request_row(b: DesignBatch, p_req: F64) -> INT:
     return np.where(count == 1, last, -1)
 
 
-def solve_warm(b: DesignBatch, p_req: F64, step: int = 16) -> Solution:
-    """:func:`core.pa_design.solve` for ordered samples, most of them in one pass.
+def solve_warm(b: DesignBatch, p_req: F64, step: int = 32) -> Solution:
+    """:func:`core.pa_design.solve` for ordered samples, most settled by one evaluation.
 
     Parameters
     ----------

@@ -13,7 +13,7 @@ every request), warm-started between neighbouring targets (:mod:`core.pa_warm`).
 
 from __future__ import annotations
 
-from dataclasses import fields, replace
+from dataclasses import fields
 
 import numpy as np
 import pandas as pd
@@ -27,7 +27,7 @@ from core.pa_model import BF_GAMMA_LIMIT, DesignBatch, Solution
 from core.pa_points import Points
 from core.study.model import CandidateKind, DieArrangement, Study
 
-__all__ = ["REASON_TEXT", "solve_warm", "sweep_arrays", "sweep_table"]
+__all__ = ["REASON_TEXT", "sweep_arrays", "sweep_table"]
 
 _REASONS = (
     "P1dB needs more unit cells than the card combines",
@@ -65,33 +65,13 @@ def _subset(plan: Plan, rows: NDArray[np.int64]) -> tuple[DesignBatch, LayoutPar
     return DesignBatch(**values), lp, extra
 
 
-def _solve_part(full: DesignBatch, p_req: NDArray[np.float64]) -> tuple[DesignBatch, Solution]:
-    pruned = prune_points(full)
-    return pruned, solve_warm(pruned, p_req)
-
-
-#: Every ``_ANCHOR_STEP``-th sample is solved cold and brackets its neighbours.
+#: Every ``_ANCHOR_STEP``-th target (at least) is searched in full and brackets the others.
 _ANCHOR_STEP = 32
 
 
-def solve_warm(b: DesignBatch, p_req: NDArray[np.float64]) -> Solution:
-    """:func:`core.pa_warm.solve_warm` with this module's anchor spacing."""
-    return pa_warm.solve_warm(b, p_req, _ANCHOR_STEP)
-
-
-def _expand(a: Solution, a_rows: NDArray[np.bool_], b: Solution, b_rows: NDArray[np.bool_]):
-    """One solution of K samples from ``a`` (samples ``a_rows``) and ``b`` (``b_rows``, wins)."""
-    k_n = a_rows.shape[0]
-    k_a = int(a_rows.sum())
-    changes = {}
-    for f in fields(a):
-        x, y = getattr(a, f.name), getattr(b, f.name)
-        if isinstance(x, np.ndarray) and x.ndim >= 2 and x.shape[0] == k_a:
-            out = np.empty((k_n, *x.shape[1:]), dtype=np.result_type(x, y))
-            out[a_rows] = x
-            out[b_rows] = y
-            changes[f.name] = out
-    return replace(a, **changes, curves=None)
+def _solve_part(full: DesignBatch, p_req: NDArray[np.float64]) -> tuple[DesignBatch, Solution]:
+    pruned = prune_points(full)
+    return pruned, pa_warm.solve_warm(pruned, p_req, _ANCHOR_STEP)
 
 
 def _part(study: Study, plan: Plan, rows: NDArray[np.int64], x: NDArray, grouped: bool):
