@@ -174,13 +174,28 @@ class CurvesPage(QWidget):
         layout.addLayout(left)
         layout.addLayout(right, 1)
 
+        self._pending: Any = None
         controller.evaluation_changed.connect(self._on_controller_evaluation_changed)
         if controller.evaluation is not None:
             self._rebuild(controller.evaluation)
 
     # -- controller → view ---------------------------------------------------------------
     def _on_controller_evaluation_changed(self, evaluation: Any, _seconds: float) -> None:
-        self._rebuild(evaluation)
+        # Redrawing every curve costs more than the rest of an edit's refresh: do it now only
+        # when the page is on screen, otherwise when it is next shown.
+        self._pending = evaluation
+        if self.isVisible():
+            self.ensure_current()
+
+    def ensure_current(self) -> None:
+        """Redraw now if an evaluation arrived while the page was hidden."""
+        if self._pending is not None:
+            evaluation, self._pending = self._pending, None
+            self._rebuild(evaluation)
+
+    def showEvent(self, event: Any) -> None:
+        super().showEvent(event)
+        self.ensure_current()
 
     def shown_candidates(self) -> list[tuple[int, str]]:
         """(colour index, name) of the study's enabled candidates, in study order."""
@@ -392,6 +407,7 @@ class CurvesPage(QWidget):
 
     def prepare_snapshot(self) -> None:
         """Read out the worst in-band gain of the first plotted curve, as a hover would."""
+        self.ensure_current()
         for key in self.visible_curves():
             if key[2] == "gain":
                 x, y = self._data[key]
