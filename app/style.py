@@ -24,11 +24,12 @@ STATUS_STYLE: dict[str, tuple[str, str, str]] = {
 
 
 def candidate_color(index: int) -> QColor:
-    """Colour of the ``index``-th candidate (cycles through the palette)."""
+    """Colour of the ``index``-th candidate (cycles through the palette), a new QColor."""
     return QColor(_OKABE_ITO[index % len(_OKABE_ITO)])
 
 
 def status_color(status: str) -> QColor:
+    """Fill colour of a status, a new QColor."""
     return QColor(STATUS_STYLE.get(status, ("", "", "#ffffff"))[2])
 
 

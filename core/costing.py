@@ -290,7 +290,27 @@ def _uses_band_select(cand: Candidate, n_bands: int) -> bool:
     )
 
 
-def _dies_of(study: Study, evaluation: Any, cand: Candidate, card: ProcessCard) -> list[_Die]:
+@dataclass(frozen=True)
+class _Sizes:
+    """The evaluation's die sizes, read once per costing (frame lookups are slow per item)."""
+
+    die_wh: dict[str, tuple[float, float]]
+    design_area: dict[tuple[str, str], float]
+
+    @classmethod
+    def from_evaluation(cls, evaluation: Any) -> _Sizes:
+        s = evaluation.summary
+        die_wh: dict[str, tuple[float, float]] = {}
+        for name, w, h in zip(s["candidate"], s["die_width_mm"], s["die_height_mm"], strict=True):
+            die_wh.setdefault(str(name), (float(w), float(h)))
+        d = evaluation.design
+        design_area: dict[tuple[str, str], float] = {}
+        for key in zip(d["candidate"], d["design"], d["area_total_mm2"], strict=True):
+            design_area.setdefault((str(key[0]), str(key[1])), float(key[2]))
+        return cls(die_wh, design_area)
+
+
+def _dies_of(study: Study, sizes: _Sizes, cand: Candidate, card: ProcessCard) -> list[_Die]:
     """The distinct dies of ``cand`` with their count per radio (rules of the module).
 
     Sizes are the estimator's: its summary for a one-die candidate; for separate PAs on one die
@@ -298,16 +318,12 @@ def _dies_of(study: Study, evaluation: Any, cand: Candidate, card: ProcessCard) 
     as the estimator shapes a die, W = √(A·aspect), H = √(A/aspect).
     """
     n_el = [b.link.n_elements for b in study.bands]
-    summary = evaluation.summary
-    srow = summary[summary["candidate"] == cand.name].iloc[0]
     if not _per_band(cand):
-        w, h = float(srow["die_width_mm"]), float(srow["die_height_mm"])
+        w, h = sizes.die_wh[cand.name]
         return [_Die(ALL_BANDS_DIE, None, w, h, max(n_el))]
-    design = evaluation.design[evaluation.design["candidate"] == cand.name]
     dies = []
     for b, n in zip(study.bands, n_el, strict=True):
-        hit = design.loc[design["design"] == b.name, "area_total_mm2"]
-        a = float(hit.iloc[0]) if len(hit) else math.nan
+        a = sizes.design_area.get((cand.name, b.name), math.nan)
         w, h = math.sqrt(a * card.die_aspect), math.sqrt(a / card.die_aspect)
         dies.append(_Die(b.name, b.name, w, h, n))
     return dies
@@ -371,6 +387,7 @@ def cost_study(study: Study, evaluation: Any) -> CostResult:
     volume = int(study.cost.design_volume)
     n_bands = len(study.bands)
     covered = set(evaluation.summary["candidate"])
+    sizes = _Sizes.from_evaluation(evaluation)
     rows: list[dict[str, Any]] = []
     die_rows: list[dict[str, Any]] = []
     findings: list[Finding] = []
@@ -391,7 +408,7 @@ def cost_study(study: Study, evaluation: Any) -> CostResult:
         derivations[(cand.name, None, "nre")] = _nre_derivation(
             cand, inputs, nre, n_designs, factor, rule, volume
         )
-        dies = _dies_of(study, evaluation, cand, card)
+        dies = _dies_of(study, sizes, cand, card)
         costs: list[UnitCost] = []
         notes: list[str] = []
         for die in dies:
@@ -424,7 +441,8 @@ def cost_study(study: Study, evaluation: Any) -> CostResult:
         derivations[(cand.name, None, "unit_cost")] = _unit_derivation(
             cand, inputs, dies, costs, row, volume
         )
-    per = pd.DataFrame(rows, columns=list(PER_CANDIDATE_COLUMNS)).astype({"feasible": bool})
+    per = pd.DataFrame(rows, columns=list(PER_CANDIDATE_COLUMNS))
+    per["feasible"] = per["feasible"].astype(bool)  # one column: astype({...}) copies all
     ok = per[per["feasible"]]
     names = list(ok["candidate"])
     rec = [float(x) for x in ok["pa_cost_per_radio_usd"]]

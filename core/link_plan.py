@@ -10,6 +10,7 @@ count and DC power; :func:`array_optimum` marks the best N per candidate and ban
 
 from __future__ import annotations
 
+import functools
 import math
 
 import numpy as np
@@ -101,7 +102,19 @@ def link_inputs(band: BandSpec) -> LinkInputs:
 def _worst_case_hz(band: BandSpec, inputs: LinkInputs) -> float:
     if not band.f_high_hz > band.f_low_hz:
         raise ValueError(f"bands[{band.name}].f_high_ghz: must be greater than f_low_ghz")
-    return worst_case_frequency_hz(band.f_low_hz, band.f_high_hz, inputs)
+    return _worst_case_cached(band.f_low_hz, band.f_high_hz, inputs)
+
+
+# Ledgers are recomputed for every notice refresh and array sweep of the GUI, mostly for
+# unchanged bands; inputs and results are immutable, so they are memoised by value.
+@functools.lru_cache(maxsize=256)
+def _worst_case_cached(f_low_hz: float, f_high_hz: float, inputs: LinkInputs) -> float:
+    return worst_case_frequency_hz(f_low_hz, f_high_hz, inputs)
+
+
+@functools.lru_cache(maxsize=256)
+def _ledger_cached(f_low_hz: float, f_high_hz: float, inputs: LinkInputs) -> LinkBudget:
+    return link_budget(_worst_case_cached(f_low_hz, f_high_hz, inputs), inputs)
 
 
 def band_ledger(band: BandSpec) -> LinkBudget:
@@ -135,7 +148,9 @@ def band_ledger(band: BandSpec) -> LinkBudget:
     '29.50 GHz'
     """
     x = link_inputs(band)
-    return link_budget(_worst_case_hz(band, x), x)
+    if not band.f_high_hz > band.f_low_hz:
+        raise ValueError(f"bands[{band.name}].f_high_ghz: must be greater than f_low_ghz")
+    return _ledger_cached(band.f_low_hz, band.f_high_hz, x)
 
 
 def study_ledgers(study: Study) -> dict[str, LinkBudget]:

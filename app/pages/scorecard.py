@@ -108,6 +108,15 @@ _SUMMARY: tuple[tuple[str, str, str, str, float, str, str, str], ...] = (
 
 _PER_CANDIDATE = "Per candidate"
 _EMPTY = pd.DataFrame({"candidate": []})
+_DARK_TEXT = QColor("#1a1a1a")  # on the light status fills
+
+
+def _records(table: pd.DataFrame) -> list[dict[str, Any]]:
+    """Rows of a small frame as dicts of Python values (several times faster than to_dict)."""
+    keys = list(table.columns)
+    columns = [table[k].tolist() for k in keys]
+    return [dict(zip(keys, values, strict=True)) for values in zip(*columns, strict=True)]
+
 
 Findings = dict[tuple[str, str | None], list[str]]
 
@@ -231,6 +240,7 @@ class ScorecardTableModel(QAbstractTableModel):
         self.candidates: list[str] = []
         self._cells: dict[tuple[int, int], _Cell] = {}
         self._colour_index: dict[str, int] = {}
+        self._colours: dict[Any, QColor] = {}  # data() is called per cell and role on paint
         self._maps: list[Mapping[tuple, Any]] = []
         self._ev: Any = None
         self.set_evaluation(controller.evaluation)
@@ -312,9 +322,9 @@ class ScorecardTableModel(QAbstractTableModel):
     ) -> dict[tuple[int, int], _Cell]:
         if ev is None or not candidates:
             return {}
-        score = {(r.candidate, r.band, r.metric): r for r in ev.scorecard.itertuples(index=False)}
+        score = {(r["candidate"], r["band"], r["metric"]): r for r in _records(ev.scorecard)}
         rows = {
-            source: {r["candidate"]: r for r in table.to_dict("records")}
+            source: {r["candidate"]: r for r in _records(table)}
             for source, table in self._tables(ev).items()
         }
         findings: Findings = {}
@@ -343,16 +353,16 @@ class ScorecardTableModel(QAbstractTableModel):
     def _metric_cell(name: str, col: ScoreColumn, row: Any, findings: Findings) -> _Cell:
         if row is None:
             return _Cell("—", -math.inf, f"{col.band} {col.header}: not evaluated")
-        status = str(row.status)
+        status = str(row["status"])
         symbol, word, _ = STATUS_STYLE.get(status, ("?", status, ""))
-        if _finite(row.estimate):
-            value, sort = col.fmt.format(float(row.estimate)), float(row.estimate)
+        if _finite(row["estimate"]):
+            value, sort = col.fmt.format(float(row["estimate"])), float(row["estimate"])
         else:
             value, sort = "—", -math.inf  # no estimate sorts as the worst value
-        margin = f"{float(row.margin):+.1f}" if _finite(row.margin) else ""
+        margin = f"{float(row['margin']):+.1f}" if _finite(row["margin"]) else ""
         tip = [
             f"{name} · {col.band} · {col.header} (worst in band)",
-            f"Estimate: {value} {col.unit}   Target: {float(row.target):g} {col.unit}",
+            f"Estimate: {value} {col.unit}   Target: {float(row['target']):g} {col.unit}",
         ]
         if margin:
             tip.append(f"Margin: {margin} {'PAE points' if col.field == 'pae' else col.unit}")
@@ -449,11 +459,12 @@ class ScorecardTableModel(QAbstractTableModel):
         if role == KEY_ROLE:
             return cell.derivation_key
         if role == Qt.ItemDataRole.BackgroundRole and cell.status:
-            return status_color(cell.status)
+            return self._colours.setdefault(cell.status, status_color(cell.status))
         if role == Qt.ItemDataRole.ForegroundRole and cell.status:
-            return QColor("#1a1a1a")
+            return _DARK_TEXT
         if role == Qt.ItemDataRole.DecorationRole and col.kind == "candidate":
-            return candidate_color(self._colour_index.get(self.candidates[index.row()], 0))
+            i = self._colour_index.get(self.candidates[index.row()], 0)
+            return self._colours.setdefault(i, candidate_color(i))
         if role == Qt.ItemDataRole.TextAlignmentRole:
             if col.kind == "candidate":
                 return int(Qt.AlignmentFlag.AlignLeft | Qt.AlignmentFlag.AlignVCenter)

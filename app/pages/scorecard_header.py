@@ -42,6 +42,9 @@ class FramedSelectionDelegate(QStyledItemDelegate):
 
     def paint(self, painter: QPainter, option: QStyleOptionViewItem, index: Index) -> None:
         selected = bool(option.state & QStyle.StateFlag.State_Selected)
+        if not selected and not option.state & QStyle.StateFlag.State_HasFocus:
+            super().paint(painter, option, index)  # most cells: nothing to change
+            return
         opt = QStyleOptionViewItem(option)
         opt.state &= ~QStyle.StateFlag.State_Selected
         opt.state &= ~QStyle.StateFlag.State_HasFocus
