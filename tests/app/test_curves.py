@@ -62,6 +62,23 @@ def test_curve_items_are_reused_and_updated_after_an_edit(curves, qtbot):
     np.testing.assert_allclose(y, _expected(c.evaluation, cand, band, "p1db_dbm")[1])
 
 
+def test_edits_made_elsewhere_are_drawn_when_the_page_is_shown_again(curves, qtbot):
+    # The page redraws only while on screen; it must catch up when shown.
+    w, page = curves
+    c = w.controller
+    w.select_page("Scorecard")
+    cand, band = c.study.candidates[0].name, c.study.bands[0].name
+    stale = page.curves[(cand, band, "p1db")].getData()[1].copy()
+    with qtbot.waitSignal(c.evaluation_changed, timeout=5000):
+        assert c.set_field(("bands", 0, "targets", "p1db_dbm"), 27.0)  # sizes every PA anew
+    expected = _expected(c.evaluation, cand, band, "p1db_dbm")[1]
+    assert not np.allclose(expected, stale)
+    np.testing.assert_allclose(page.curves[(cand, band, "p1db")].getData()[1], stale)
+    w.select_page(CurvesPage.title)
+    qtbot.waitExposed(page)
+    np.testing.assert_allclose(page.curves[(cand, band, "p1db")].getData()[1], expected)
+
+
 def test_targets_are_dashed_lines_over_each_band_with_the_miss_zone_below(curves, qtbot):
     w, page = curves
     for band in w.controller.study.bands:
