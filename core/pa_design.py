@@ -351,16 +351,15 @@ def _store(full: dict | None, part: dict, rows: INT, k_n: int) -> dict:
 def _least_feasible(b: DesignBatch, c: dict, p_req_w: F64, w_first: F64):
     """Smallest periphery W with W_req(W) ≤ W for every design of every sample.
 
-    W is feasible when the design built at W reaches every request (W_req(W) ≤ W). From the
-    proven lower bound ``w_first`` the iteration grows W (W ← W_req(W), or a secant step in
-    log W once the discrete decisions repeat) until a feasible W is found. From then on it
-    keeps the bracket [largest infeasible, smallest feasible] and takes regula-falsi steps on
-    F = ln W_req − ln W inside it (Illinois variant: the endpoint kept twice has its F halved),
-    which converges fast also across a change of cells, sections or stages. A design is done
-    when it is feasible and within the tolerance of the fixed point or of the bracket's lower
-    end, so the result does not depend on the path — also where the loss falls as W grows
-    (Ropt > 50 Ω) or jumps at a cell-count boundary. Only samples not yet done are passed on,
-    and each sample's last pass is kept.
+    W is feasible when the design built at W reaches every request (W_req(W) ≤ W). The
+    search (:func:`_search`) grows W from the proven lower bound ``w_first`` and closes in on
+    a crossing of W_req(W) = W. Between two split-level steps (n_cells = 2^m + 1, where one
+    more combiner level drops the deliverable P1dB) the feasible peripheries of a piece form
+    one interval ending at the piece's upper end (the loss rises slower than W there, see
+    :mod:`core.pa_warm`), but a narrow feasible interval just below a step can be stepped
+    over. So every step below the periphery found is checked (:func:`_earlier_pieces`): where
+    one is feasible, the least feasible W is searched again inside that piece, bracketed by
+    its two ends.
 
     Returns
     -------
@@ -368,16 +367,109 @@ def _least_feasible(b: DesignBatch, c: dict, p_req_w: F64, w_first: F64):
         The pass at the final periphery of every sample.
     passes : int
     """
-    k_n, g_n = w_first.shape
+    st, passes = _search(b, c, p_req_w, w_first)
+    return _earlier_pieces(b, c, p_req_w, w_first, st, passes)
+
+
+def _req_db_of(p_req_w: F64) -> F64:
     req_db = np.full(p_req_w.shape, -np.inf)
     np.log10(p_req_w, out=req_db, where=p_req_w > 0)
-    req_db *= 10.0
+    return 10.0 * req_db
+
+
+def _earlier_pieces(b: DesignBatch, c: dict, p_req_w: F64, w_first: F64, st: dict, passes: int):
+    """Re-search the designs whose feasible set starts below a split step under their result.
+
+    Piece m holds the peripheries with m split levels, W ≤ E_m = cell·(2^m + 1e-9) (as
+    :func:`_geometry` rounds). Every E_m between the start and the found periphery is
+    evaluated in one batch; the first feasible one bounds the least feasible W, which lies in
+    (E_(m−1), E_m] and is found by a search bracketed by the two ends.
+    """
+    w_found = st["w"]
+    k_n, g_n = w_found.shape
+    cell, max_cells = c["cell_g"][0], c["max_cells_g"][0]
+    m_n = int(np.ceil(np.log2(max(float(max_cells.max()), 1.0)) - 1e-9))
+    if m_n < 1:
+        return st, passes
+    # Just below each step, so that the pass rounds to m levels.
+    ends = cell[None, :] * (2.0 ** np.arange(m_n)[:, None] + 1e-9) * (1.0 - 1e-12)
+    below = (
+        (ends[:, None, :] < w_found[None, :, :] * (1.0 - _W_RTOL))
+        & (ends[:, None, :] > w_first[None, :, :])
+        & (2.0 ** np.arange(m_n)[:, None, None] < max_cells[None, None, :])
+    )
+    ms = np.flatnonzero(below.any(axis=(1, 2)))
+    if not ms.size:
+        return st, passes
+    req_db = _req_db_of(p_req_w)
+    w_b = np.concatenate([np.where(below[m], ends[m][None, :], w_found) for m in ms])
+    reps = ms.size
+    req = _required(
+        b, _pass(b, c, w_b, np.tile(req_db, (reps, 1))), np.tile(p_req_w, (reps, 1))
+    ).reshape(reps, k_n, g_n)
+    w_b = w_b.reshape(reps, k_n, g_n)
+    feas = below[ms] & (req <= w_b * (1.0 + _W_RTOL))
+    redo = feas.any(axis=0)
+    if not redo.any():
+        return st, passes + 1
+    first = feas.argmax(axis=0)  # index into ms of the first feasible step
+    m_first = ms[first]
+    hi = np.take_along_axis(w_b, first[None], axis=0)[0]
+    f_hi = np.log(np.take_along_axis(req, first[None], axis=0)[0]) - np.log(hi)
+    lo = np.where(m_first > 0, ends[np.maximum(m_first - 1, 0), np.arange(g_n)], 0.0)
+    lo = np.maximum(lo / (1.0 - 1e-12) * (1.0 + 1e-12), w_first)  # just past the step below
+    rows = np.flatnonzero(redo.any(axis=1))
+    r = redo[rows]
+    # The other designs of those samples start just below their result and settle at once.
+    start = np.where(r, lo[rows], w_found[rows] * (1.0 - 1e-9))
+    part, p2 = _search(
+        b,
+        c,
+        p_req_w[rows],
+        start,
+        lo=np.where(r, lo[rows], 0.0),
+        hi=np.where(r, hi[rows], np.inf),
+        f_hi=np.where(r, f_hi[rows], 0.0),
+    )
+    merged = _store(None, _slice(st, np.ones(k_n, dtype=bool)), np.arange(k_n), k_n)
+    merged = _store(merged, part, rows, k_n)
+    merged["ch"] = ChosenPoints(b.points, merged.pop("seg"))
+    return merged, passes + 1 + p2
+
+
+def _search(
+    b: DesignBatch,
+    c: dict,
+    p_req_w: F64,
+    w_first: F64,
+    lo: F64 | None = None,
+    hi: F64 | None = None,
+    f_hi: F64 | None = None,
+):
+    """The periphery search of :func:`_least_feasible`, optionally inside a known bracket.
+
+    From ``w_first`` the iteration grows W (W ← W_req(W), or a secant step in log W once the
+    discrete decisions repeat) until a feasible W is found. From then on it keeps the bracket
+    [largest infeasible, smallest feasible] and takes regula-falsi steps on
+    F = ln W_req − ln W inside it (Illinois variant: the endpoint kept twice has its F halved),
+    which converges fast also across a change of cells, sections or stages. A design is done
+    when it is feasible and within the tolerance of the fixed point or of the bracket's lower
+    end. ``lo``/``hi``/``f_hi`` (K, G) start the bracket: ``lo`` infeasible, ``hi`` feasible
+    with F = ``f_hi`` (0 and inf where unknown). Only samples not yet done are passed on, and
+    each sample's last pass is kept.
+    """
+    k_n, g_n = w_first.shape
+    req_db = _req_db_of(p_req_w)
     w = w_first.copy()
-    lo, hi = np.zeros_like(w), np.full_like(w, np.inf)
-    f_lo, f_hi = np.zeros_like(w), np.zeros_like(w)
+    lo = np.zeros_like(w) if lo is None else lo.copy()
+    hi = np.full_like(w, np.inf) if hi is None else hi.copy()
+    f_lo = np.zeros_like(w)
+    f_hi = np.zeros_like(w) if f_hi is None else f_hi.copy()
     side = np.zeros_like(w)
     prev_lw, prev_lr = np.zeros_like(w), np.zeros_like(w)
     prev_dec = np.full((k_n, 3 * g_n), -1.0)
+    # A design without any request is unconstrained: it stays at its starting periphery.
+    idle = ~np.logical_or.reduceat(p_req_w > 0, b.starts, axis=1)
     active = np.arange(k_n)
     passes = 0
     store: dict | None = None
@@ -386,7 +478,8 @@ def _least_feasible(b: DesignBatch, c: dict, p_req_w: F64, w_first: F64):
         st = _pass(b, c, wa, req_db[active])
         passes += 1
         req = _required(b, st, p_req_w[active])
-        lw, lr = np.log(wa), np.log(req)
+        lw = np.log(wa)
+        lr = np.log(np.where(idle[active], wa, req))
         f = lr - lw
         feas = req <= wa * (1.0 + _W_RTOL)
         sd = side[active]
@@ -395,6 +488,7 @@ def _least_feasible(b: DesignBatch, c: dict, p_req_w: F64, w_first: F64):
         flo = np.where(feas, np.where(sd > 0, 0.5 * f_lo[active], f_lo[active]), f)
         fhi = np.where(feas, f, np.where(sd < 0, 0.5 * f_hi[active], f_hi[active]))
         done = feas & ((req >= wa * (1.0 - _W_RTOL)) | (wa <= lo_a * (1.0 + _W_RTOL)))
+        done |= idle[active]
         # Growth phase: secant step in log W once the discrete decisions repeat.
         dec = np.concatenate([st["n_cells"], st["n_st"], st["s_g"]], axis=1).astype(float)
         dx, dy = lw - prev_lw[active], lr - prev_lr[active]

@@ -6,6 +6,7 @@ test_estimate*.py. The shortcuts only change how the least feasible periphery is
 every result must agree within the search tolerance (1e-10 relative): here 1e-9.
 """
 
+import dataclasses
 import math
 
 import numpy as np
@@ -20,14 +21,17 @@ from core.link import array_sweep
 from core.link_plan import _worst_case_hz, link_inputs
 from core.pa_design import prune_points, solve
 from core.pa_model import chebyshev_scale
+from core.process import DEFAULT_CARDS
 from core.resources import demo_path
 from core.study import load_study
-from core.study.model import CandidateKind
+from core.study.model import BandSpec, Candidate, CandidateKind, Study, Targets
 
 FIELDS = ("w_out_mm", "dc_out_w", "dc_drivers_w", "worst_pae")
 DB_FIELDS = ("worst_p1db_dbm", "worst_gain_db")
 #: 1e-9 relative in power is 10·log10(1 + 1e-9) = 4.3e-9 dB.
 DB_TOL = 10.0 * np.log10(1.0 + 1e-9)
+#: Examples of the random-study property (raise it locally to hunt for a counterexample).
+RANDOM_STUDIES = 12
 DISCRETE = ("n_cells", "n_sections", "n_stages", "cells_ok", "gain_found", "levels")
 
 
@@ -202,3 +206,111 @@ def test_worst_figures_are_at_the_point_of_largest_loss():
         rf.chebyshev_max_reflection(sol.ratio, n_sec, plan.batch.bw_frac[None, :]),
         rtol=1e-12,
     )
+
+
+@settings(max_examples=RANDOM_STUDIES, deadline=None)
+@given(
+    card=st.sampled_from(tuple(DEFAULT_CARDS)),
+    f0=st.lists(st.floats(22.0, 44.0), min_size=2, max_size=3, unique=True),
+    bw=st.floats(0.02, 0.12),
+    gain=st.floats(10.0, 30.0),
+    top=st.floats(20.0, 45.0),
+)
+def test_random_studies_sweep_like_the_cold_search(card, f0, bw, gain, top):
+    # Any process, two or three bands, every architecture, falling targets from `top` dBm
+    # over 45 dB (array sizing's shape): the shortcuts must not change a single result.
+    bands = tuple(
+        BandSpec(
+            name=f"b{i}",
+            f_low_ghz=f * (1 - bw / 2),
+            f_high_ghz=f * (1 + bw / 2),
+            targets=Targets(gain_db=gain, p1db_dbm=25.0, pae_pct=20.0),
+        )
+        for i, f in enumerate(sorted(f0))
+    )
+    cands = tuple(Candidate(name=k.value, kind=k, process=card) for k in CandidateKind)
+    study = dataclasses.replace(Study.new(), bands=bands, candidates=cands)
+    plan = build_plan(study)
+    kinds = np.array([c.kind for c in plan.candidates], dtype=object)[plan.row_cand]
+    x = top - 20.0 * np.log10(np.arange(1, 301, dtype=float))
+    for separate in (True, False):
+        rows = np.flatnonzero((kinds == CandidateKind.SEPARATE) == separate)
+        b, _, _ = sweep._subset(plan, rows)
+        safe = prune_points(b)
+        band = plan.row_band[rows]
+        if separate:  # one design per row: every sample sizes every row (as core.sweep._part)
+            p_req = np.asarray(rf.dbm_to_w(np.stack([x] * len(bands))))[band].T
+        else:
+            p_req = _requests(band, np.stack([x] * len(bands)))
+        _assert_same(pa_warm.solve_warm(safe, p_req, 16), solve(safe, p_req))
+
+
+def _random_study(card, f0, bw, gain):
+    bands = tuple(
+        BandSpec(
+            name=f"b{i}",
+            f_low_ghz=f * (1 - bw / 2),
+            f_high_ghz=f * (1 + bw / 2),
+            targets=Targets(gain_db=gain, p1db_dbm=25.0, pae_pct=20.0),
+        )
+        for i, f in enumerate(sorted(f0))
+    )
+    cands = tuple(Candidate(name=k.value, kind=k, process=card) for k in CandidateKind)
+    return dataclasses.replace(Study.new(), bands=bands, candidates=cands)
+
+
+def _no_feasible_below(b, p_req, sol, n_scan=300):
+    """Every design's periphery is the least feasible one: none on a scan below it is."""
+    from core.pa_design import _pass, _required, initial_periphery, prepare
+
+    c = prepare(b)
+    w0 = initial_periphery(b, p_req, c)
+    k_n, g_n = sol.w_out_mm.shape
+    found = np.asarray(sol.w_out_mm, dtype=float)
+    for g in range(g_n):
+        frac = np.linspace(0.0, 1.0, n_scan, endpoint=False)
+        w = w0[:, g : g + 1] * (found[:, g : g + 1] / w0[:, g : g + 1]) ** frac  # (K, n)
+        w_all = np.repeat(found[:, None, :], n_scan, axis=1)
+        w_all[:, :, g] = w
+        w_all = w_all.reshape(-1, g_n)
+        p_all = np.repeat(p_req, n_scan, axis=0)
+        req_db = np.full(p_all.shape, -np.inf)
+        np.log10(p_all, out=req_db, where=p_all > 0)
+        req = _required(b, _pass(b, c, w_all, 10.0 * req_db), p_all)[:, g].reshape(k_n, n_scan)
+        ok = sol.cells_ok[:, g]
+        feasible = req <= w * (1.0 - 1e-9)
+        assert not (feasible & ok[:, None]).any(), f"design {g}: feasible below the result"
+
+
+def test_a_narrow_feasible_window_below_a_split_step_is_found():
+    # Found by test_random_studies_sweep_like_the_cold_search: this wideband SOI design can
+    # serve 22 GHz at W ≈ 0.1977 mm with one unit cell, feasible only up to the step to two
+    # cells at ≈ 0.199 mm; a search that steps over that window settles at ≈ 0.224 mm.
+    study = _random_study("Stacked-FET SOI CMOS 45 nm", [22.0, 43.375], 0.0859375, 10.0)
+    plan = build_plan(study)
+    kinds = np.array([c.kind for c in plan.candidates], dtype=object)[plan.row_cand]
+    rows = np.flatnonzero(kinds != CandidateKind.SEPARATE)
+    b, _, _ = sweep._subset(plan, rows)
+    safe = prune_points(b)
+    x = 43.3125 - 20.0 * np.log10(np.arange(1, 301, dtype=float))
+    p_req = _requests(plan.row_band[rows], np.stack([x, x]))[21:22]
+    sol = solve(safe, p_req)
+    assert sol.w_out_mm[0, 0] == pytest.approx(0.197677, rel=1e-5)
+    _no_feasible_below(safe, p_req, sol)
+
+
+@settings(max_examples=RANDOM_STUDIES, deadline=None)
+@given(
+    card=st.sampled_from(tuple(DEFAULT_CARDS)),
+    f0=st.lists(st.floats(22.0, 44.0), min_size=2, max_size=3, unique=True),
+    bw=st.floats(0.02, 0.12),
+    gain=st.floats(10.0, 30.0),
+    targets=st.lists(st.floats(0.0, 40.0), min_size=1, max_size=6),
+)
+def test_evaluated_peripheries_are_the_least_feasible(card, f0, bw, gain, targets):
+    # The definition of the periphery (core.pa_design.solve): the smallest W whose design
+    # reaches every request. Checked by brute force, a 300-point scan below each result.
+    study = _random_study(card, f0, bw, gain)
+    b = build_plan(study).batch
+    p_req = np.asarray(rf.dbm_to_w(np.asarray(targets)))[:, None] * np.ones(b.n_rows)
+    _no_feasible_below(prune_points(b), p_req, solve(prune_points(b), p_req))
