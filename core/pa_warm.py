@@ -32,7 +32,7 @@ usually settled by one cheap evaluation of the chain:
    full chain, hence W*(p) by step 2). Where, across the bracket, every section count keeps
    its worst point (same at both anchors, that point's Bode–Fano floor in the same state at
    both, no ratio crossing 1), that point alone gives each section count's exact loss, so the
-   check evaluates one point per section count (:func:`core.pa_design._reduced_pass`);
+   check evaluates one point per section count (:func:`core.pa_chain._reduced_pass`);
    elsewhere it is a full pass over every point.
 
 A sample for which any design fails steps 2–4 is searched as in
@@ -47,16 +47,13 @@ from dataclasses import replace
 import numpy as np
 from numpy.typing import NDArray
 
+from core.pa_chain import _pass, _reduced_pass, _required, prepare
 from core.pa_design import (
     _W_RTOL,
     _finish,
     _least_feasible,
-    _pass,
-    _reduced_pass,
-    _required,
     _slice,
     initial_periphery,
-    prepare,
     solve,
 )
 from core.pa_model import LOAD_OHM, DesignBatch, Solution, chebyshev_scale
@@ -352,7 +349,7 @@ class _Model:
 
     The loss of point i at periphery W is c_i + 10·log10(1 + v²), c_i = N·L_sec + levels·L_p
     + band select + deficit, v = max(a(r)·h_i, v_bf,i), r = 50·W/(Ropt·W) (as in
-    :func:`core.pa_design._pass`); the model takes the larger of the two anchors' worst points
+    :func:`core.pa_chain._pass`); the model takes the larger of the two anchors' worst points
     when they share a section count (same segment) and the smaller otherwise (the section
     count is chosen for the least loss). G(u) = u − ln W_req(e^u), u = ln W, rises with u
     (module notes, step 2), so it has one root, found in closed form (:meth:`root`).

@@ -114,7 +114,7 @@ def test_pruned_points_keep_every_worst_case(alpha, beta, a, c, kind):
     # points as on the full grid.
     plan = build_plan(study(kinds=(kind,)))
     b = plan.batch
-    from core.pa_design import _constants
+    from core.pa_chain import _constants
 
     full = _constants(b)
     pts = prune(b.points, full["l_p"], full["l_sw"], full["h"])

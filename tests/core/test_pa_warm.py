@@ -261,7 +261,8 @@ def _random_study(card, f0, bw, gain):
 
 def _no_feasible_below(b, p_req, sol, n_scan=300):
     """Every design's periphery is the least feasible one: none on a scan below it is."""
-    from core.pa_design import _pass, _required, initial_periphery, prepare
+    from core.pa_chain import _pass, _required, prepare
+    from core.pa_design import initial_periphery
 
     c = prepare(b)
     w0 = initial_periphery(b, p_req, c)
