@@ -31,7 +31,7 @@ DB_FIELDS = ("worst_p1db_dbm", "worst_gain_db")
 #: 1e-9 relative in power is 10·log10(1 + 1e-9) = 4.3e-9 dB.
 DB_TOL = 10.0 * np.log10(1.0 + 1e-9)
 #: Examples of the random-study property (raise it locally to hunt for a counterexample).
-RANDOM_STUDIES = 12
+RANDOM_STUDIES = 40
 DISCRETE = ("n_cells", "n_sections", "n_stages", "cells_ok", "gain_found", "levels")
 
 
