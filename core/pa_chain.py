@@ -50,7 +50,7 @@ def _q_terms(b: DesignBatch, r: INT, f: F64) -> dict[str, F64]:
 
 
 def _constants(b: DesignBatch) -> dict[str, F64]:
-    """Per-point quantities that do not depend on the periphery, each (Q,).
+    """Per-point quantities that do not depend on the periphery, each (Q,); ``bf`` per row.
 
     On a uniform grid the Q terms are computed once per (row, f) and h_N once per distinct
     (grid, design band) — rows of different candidates often share them — then expanded to

@@ -13,8 +13,9 @@ usually settled by one cheap evaluation of the chain:
    feasible periphery W*(p) = min{W : h(W) ≥ p} rises with p, and the anchors on either side
    bound it: W*(p_lo) ≤ W*(p) ≤ W*(p_hi).
 2. **Monotone pieces.** h is continuous and strictly increasing wherever the combiner's split
-   levels are constant, the driver deficit cannot switch on or off (fixed stages, a one-stage
-   design impossible by the gain target, or no deficit at all), no cell limit is reached,
+   levels are constant, the driver deficit cannot switch on or off (fixed stages, at most one
+   stage allowed, a one-stage design impossible by the gain target, or no deficit at all), no
+   cell limit is reached,
    and every in-band point has h_N ≤ √2. Proof sketch: at fixed decisions each point's loss
    is c_i + 10·log10(1 + v²), v = a(r)·h_N, a = |r − 1|/(2√r), r ∝ W, and
    d ln(1 + v²)/d ln W = h_N²(r² − 1)/(4r(1 + v²)) < 1 when h_N² < 2r/(r − 1) — true for
@@ -175,8 +176,8 @@ def _anchors(b: DesignBatch, p_req: F64, step: int) -> tuple[INT, INT]:
 
     Anchors: every ``step``-th sample and the last (so every other sample has one on each
     side), both samples around a change of the requested rows (band j to band j + 1 of a
-    grouped sweep), and every sample whose largest request enters a new octave (h has a step
-    about every doubling of W, and a bracket may hold one only).
+    grouped sweep), and every sample whose largest request enters a new half-octave (h has a
+    step about every doubling of W, and a bracket may hold one only).
     """
     k_n = p_req.shape[0]
     anchor = np.arange(k_n) % step == 0
@@ -228,7 +229,9 @@ def _brackets(b, c, p_req, a_idx, rest, a_st) -> dict[str, F64]:
 
     Returns, each (K_rest, G): ``eligible``, ``w_root`` (the model's W*), ``w_check`` (a
     periphery that must prove infeasible for the root to be the least feasible one, 0 where
-    none is needed), ``w_hi`` (upper anchor) and ``seed`` (lower bound for a full search).
+    none is needed), ``w_hi`` (upper anchor) and ``seed`` (lower bound for a full search);
+    ``reduced`` (K_rest,), samples whose check may use one point per section count, and
+    ``seg_points`` (K_rest, R·S), those points.
     """
     g_n = b.starts.size
     row = one_request_row(b, p_req)
@@ -273,6 +276,9 @@ def _brackets(b, c, p_req, a_idx, rest, a_st) -> dict[str, F64]:
         & (w_hi >= w_lo)
     )
     smooth = _deficit_fixed(b, c)[rr] & (h_top <= _H_MAX)[None, :]
+    # An anchor's periphery is a lower bound for a larger request only where the search that
+    # found it is exact (see core.pa_design._least_feasible): elsewhere start from scratch.
+    seed = np.where(smooth, seed, 0.0)
     # At most one step of h inside the bracket: none, one more split level (at n_cells =
     # 2^m + 1, i.e. W = cell·(2^m + 1e-9) as _pass rounds), or the cell limit.
     level_step = ok_lo & ok_hi & (lev_hi == lev_lo + 1)
@@ -297,6 +303,7 @@ def _brackets(b, c, p_req, a_idx, rest, a_st) -> dict[str, F64]:
     if beyond.any():
         w_cap = model.required(w_end, lev_lo)
         w_b = np.where(cap_step, w_cap, np.maximum(model.root(lev_hi), w_end))
+        w_b = np.minimum(w_b, w_hi)  # W* never lies past the upper anchor
     w_model = np.where(beyond, w_b, np.clip(w_a, w_lo, w_end))
     w_check = np.where(beyond, np.minimum(w_step, w_hi), 0.0)
 
