@@ -99,10 +99,14 @@ def link_inputs(band: BandSpec) -> LinkInputs:
     )
 
 
-def _worst_case_hz(band: BandSpec, inputs: LinkInputs) -> float:
+def _edges_hz(band: BandSpec) -> tuple[float, float]:
     if not band.f_high_hz > band.f_low_hz:
         raise ValueError(f"bands[{band.name}].f_high_ghz: must be greater than f_low_ghz")
-    return _worst_case_cached(band.f_low_hz, band.f_high_hz, inputs)
+    return band.f_low_hz, band.f_high_hz
+
+
+def _worst_case_hz(band: BandSpec, inputs: LinkInputs) -> float:
+    return _worst_case_cached(*_edges_hz(band), inputs)
 
 
 # Ledgers are recomputed for every notice refresh and array sweep of the GUI, mostly for
@@ -147,10 +151,7 @@ def band_ledger(band: BandSpec) -> LinkBudget:
     >>> f"{budget.f_hz / 1e9:.2f} GHz"
     '29.50 GHz'
     """
-    x = link_inputs(band)
-    if not band.f_high_hz > band.f_low_hz:
-        raise ValueError(f"bands[{band.name}].f_high_ghz: must be greater than f_low_ghz")
-    return _ledger_cached(band.f_low_hz, band.f_high_hz, x)
+    return _ledger_cached(*_edges_hz(band), link_inputs(band))
 
 
 def study_ledgers(study: Study) -> dict[str, LinkBudget]:

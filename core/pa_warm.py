@@ -48,7 +48,7 @@ from dataclasses import replace
 import numpy as np
 from numpy.typing import NDArray
 
-from core.pa_chain import _pass, _reduced_pass, _required, prepare
+from core.pa_chain import _pass, _reduced_pass, _req_db_of, _required, prepare
 from core.pa_design import (
     _W_RTOL,
     _finish,
@@ -112,20 +112,21 @@ def solve_warm(b: DesignBatch, p_req: F64, step: int = 32) -> Solution:
         st, passes = _least_feasible(b, c, p_req, initial_periphery(b, p_req, c))
         return replace(_finish(b, c, st, passes), curves=None)
     a_st, passes = _least_feasible(b, c, p_req[a_idx], initial_periphery(b, p_req[a_idx], c))
-    a_st = _merge(a_idx.size, [(np.arange(a_idx.size), a_st)], keep_out=True)
+    a_st = {**a_st, "seg": a_st.pop("ch").seg}
 
     br = _brackets(b, c, p_req, a_idx, rest, a_st)
     w_try = np.where(br["eligible"], br["w_root"], br["w_hi"])
-    req_db = _req_db(p_req[rest])
+    req_db = _req_db_of(p_req[rest])
     parts = [(a_idx, a_st)]
     done = np.zeros(w_try.shape, dtype=bool)
     todo = np.ones(rest.size, dtype=bool)
 
-    def settle(sel: INT, st: dict) -> None:
-        """Keep the samples ``sel`` of pass ``st`` whose every design is at its root."""
-        req = _required(b, st, p_req[rest[sel]])
-        w = w_try[sel]
-        ok = br["eligible"][sel] & (req <= w * (1.0 + _W_RTOL)) & (req >= w * (1.0 - _W_RTOL))
+    def at_root(sel: INT, st: dict) -> NDArray[np.bool_]:
+        """Designs of samples ``sel`` whose pass ``st`` is at their model root, (S, G)."""
+        req, w = _required(b, st, p_req[rest[sel]]), w_try[sel]
+        return br["eligible"][sel] & (req <= w * (1.0 + _W_RTOL)) & (req >= w * (1.0 - _W_RTOL))
+
+    def keep(sel: INT, st: dict, ok: NDArray[np.bool_]) -> None:
         done[sel] = ok
         full = ok.all(axis=1)
         if full.any():
@@ -136,28 +137,23 @@ def solve_warm(b: DesignBatch, p_req: F64, step: int = 32) -> Solution:
     # gives the exact chain (module notes, step 4).
     red = np.flatnonzero(br["reduced"])
     if red.size:
-        settle(red, _reduced_pass(b, c, w_try[red], req_db[red], br["seg_points"][red]))
+        st = _reduced_pass(b, c, w_try[red], req_db[red], br["seg_points"][red])
+        keep(red, st, at_root(red, st))
     # The others: one full pass. A root past a step of h is the least feasible W only if the
     # chain is infeasible just below the step (h rises up to it): one more pass for those.
     sel = np.flatnonzero(todo)
     if sel.size:
         st = _pass(b, c, w_try[sel], req_db[sel])
-        req = _required(b, st, p_req[rest[sel]])
-        w = w_try[sel]
-        ok = br["eligible"][sel] & (req <= w * (1.0 + _W_RTOL)) & (req >= w * (1.0 - _W_RTOL))
+        ok = at_root(sel, st)
         check = ok & (br["w_check"][sel] > 0.0)
         chk = np.flatnonzero(check.any(axis=1))
         if chk.size:
-            w_chk = np.where(check[chk], br["w_check"][sel[chk]], w[chk])
+            w_chk = np.where(check[chk], br["w_check"][sel[chk]], w_try[sel[chk]])
             st_chk = _pass(b, c, w_chk, req_db[sel[chk]])
             req_chk = _required(b, st_chk, p_req[rest[sel[chk]]])
             ok[chk] &= ~check[chk] | (req_chk > w_chk * (1.0 + _W_RTOL))
             passes = max(passes, 2)
-        done[sel] = ok
-        full = ok.all(axis=1)
-        if full.any():
-            parts.append((rest[sel[full]], _slice(st, full)))
-            todo[sel[full]] = False
+        keep(sel, st, ok)
     bad = np.flatnonzero(todo)
     if bad.size:
         floor = np.where(done[bad], w_try[bad] * (1.0 - SEED_SHRINK), br["seed"][bad])
@@ -166,7 +162,7 @@ def solve_warm(b: DesignBatch, p_req: F64, step: int = 32) -> Solution:
         f_st, f_passes = _least_feasible(b, c, p_bad, w_first)
         parts.append((rest[bad], f_st))
         passes = max(passes, f_passes)
-    st = _merge(k_n, parts, keep_out=False)
+    st = _merge(k_n, parts)
     st["ch"] = ChosenPoints(b.points, st.pop("seg"))
     return replace(_finish(b, c, st, passes), curves=None)
 
@@ -192,22 +188,17 @@ def _anchors(b: DesignBatch, p_req: F64, step: int) -> tuple[INT, INT]:
     return np.flatnonzero(anchor), np.flatnonzero(~anchor)
 
 
-def _merge(k_n: int, parts: list[tuple[INT, dict]], keep_out: bool) -> dict:
-    """One per-sample pass state of K samples from parts (sample indices, state)."""
+def _merge(k_n: int, parts: list[tuple[INT, dict]]) -> dict:
+    """One per-sample pass state of K samples from parts (sample indices, state), without the
+    per-point losses (``out``), which only the anchors' worst points needed."""
     parts = [(idx, {**st, "seg": st["ch"].seg} if "ch" in st else st) for idx, st in parts]
     first = parts[0][1]
-    keys = [k for k in first if k != "ch" and (keep_out or k != "out")]
+    keys = [k for k in first if k not in ("ch", "out")]
     out = {k: np.empty((k_n, *first[k].shape[1:]), dtype=first[k].dtype) for k in keys}
     for idx, st in parts:
         for k in keys:
             out[k][idx] = st[k]
     return out
-
-
-def _req_db(p_req: F64) -> F64:
-    out = np.full(p_req.shape, -np.inf)
-    np.log10(p_req, out=out, where=p_req > 0)
-    return 10.0 * out
 
 
 def _deficit_fixed(b: DesignBatch, c: dict) -> NDArray[np.bool_]:

@@ -35,13 +35,19 @@ RANDOM_STUDIES = 40
 DISCRETE = ("n_cells", "n_sections", "n_stages", "cells_ok", "gain_found", "levels")
 
 
+def _part(plan, separate=False):
+    """The separate (or the wideband/switched) rows of a plan on pruned points, as
+    core.sweep solves them, and the band of each row."""
+    kinds = np.array([c.kind for c in plan.candidates], dtype=object)[plan.row_cand]
+    rows = np.flatnonzero((kinds == CandidateKind.SEPARATE) == separate)
+    b, _, _ = sweep._subset(plan, rows)
+    return prune_points(b), plan.row_band[rows]
+
+
 def _grouped(name):
     """A demo's wideband/switched rows (pruned), its row bands and array-sizing requests."""
     study = load_study(demo_path(name))
-    plan = build_plan(study)
-    kinds = np.array([c.kind for c in plan.candidates], dtype=object)[plan.row_cand]
-    rows = np.flatnonzero(kinds != CandidateKind.SEPARATE)
-    b, _, _ = sweep._subset(plan, rows)
+    safe, band = _part(build_plan(study))
     n = np.arange(1, 1025)
     x = np.stack(
         [
@@ -51,7 +57,7 @@ def _grouped(name):
             for bd in study.bands
         ]
     )
-    return prune_points(b), plan.row_band[rows], x + study.estimator.p1db_margin_db
+    return safe, band, x + study.estimator.p1db_margin_db
 
 
 def _requests(band, x_dbm):
@@ -221,33 +227,21 @@ def test_worst_figures_are_at_the_point_of_largest_loss():
 def test_random_studies_sweep_like_the_cold_search(card, f0, bw, gain, top):
     # Any process, two or three bands, every architecture, falling targets from `top` dBm
     # over 45 dB (array sizing's shape): the shortcuts must not change a single result.
-    bands = tuple(
-        BandSpec(
-            name=f"b{i}",
-            f_low_ghz=f * (1 - bw / 2),
-            f_high_ghz=f * (1 + bw / 2),
-            targets=Targets(gain_db=gain, p1db_dbm=25.0, pae_pct=20.0),
-        )
-        for i, f in enumerate(sorted(f0))
-    )
-    cands = tuple(Candidate(name=k.value, kind=k, process=card) for k in CandidateKind)
-    study = dataclasses.replace(Study.new(), bands=bands, candidates=cands)
+    study = _random_study(card, f0, bw, gain)
     plan = build_plan(study)
-    kinds = np.array([c.kind for c in plan.candidates], dtype=object)[plan.row_cand]
-    x = top - 20.0 * np.log10(np.arange(1, 301, dtype=float))
+    x = np.stack([top - 20.0 * np.log10(np.arange(1, 301, dtype=float))] * len(study.bands))
     for separate in (True, False):
-        rows = np.flatnonzero((kinds == CandidateKind.SEPARATE) == separate)
-        b, _, _ = sweep._subset(plan, rows)
-        safe = prune_points(b)
-        band = plan.row_band[rows]
+        safe, band = _part(plan, separate)
         if separate:  # one design per row: every sample sizes every row (as core.sweep._part)
-            p_req = np.asarray(rf.dbm_to_w(np.stack([x] * len(bands))))[band].T
+            p_req = np.asarray(rf.dbm_to_w(x))[band].T
         else:
-            p_req = _requests(band, np.stack([x] * len(bands)))
+            p_req = _requests(band, x)
         _assert_same(pa_warm.solve_warm(safe, p_req, 16), solve(safe, p_req))
 
 
-def _random_study(card, f0, bw, gain):
+def _random_study(card, f0, bw, gain, **changes):
+    """Bands of fractional width ``bw`` at centres ``f0`` (GHz), every architecture on
+    ``card``; ``changes`` replace further study fields (estimator, process_cards)."""
     bands = tuple(
         BandSpec(
             name=f"b{i}",
@@ -258,12 +252,12 @@ def _random_study(card, f0, bw, gain):
         for i, f in enumerate(sorted(f0))
     )
     cands = tuple(Candidate(name=k.value, kind=k, process=card) for k in CandidateKind)
-    return dataclasses.replace(Study.new(), bands=bands, candidates=cands)
+    return dataclasses.replace(Study.new(), bands=bands, candidates=cands, **changes)
 
 
 def _no_feasible_below(b, p_req, sol, n_scan=300):
     """Every design's periphery is the least feasible one: none on a scan below it is."""
-    from core.pa_chain import _pass, _required, prepare
+    from core.pa_chain import _pass, _req_db_of, _required, prepare
     from core.pa_design import initial_periphery
 
     c = prepare(b)
@@ -277,9 +271,8 @@ def _no_feasible_below(b, p_req, sol, n_scan=300):
         w_all[:, :, g] = w
         w_all = w_all.reshape(-1, g_n)
         p_all = np.repeat(p_req, n_scan, axis=0)
-        req_db = np.full(p_all.shape, -np.inf)
-        np.log10(p_all, out=req_db, where=p_all > 0)
-        req = _required(b, _pass(b, c, w_all, 10.0 * req_db), p_all)[:, g].reshape(k_n, n_scan)
+        req = _required(b, _pass(b, c, w_all, _req_db_of(p_all)), p_all)[:, g]
+        req = req.reshape(k_n, n_scan)
         ok = sol.cells_ok[:, g]
         feasible = req <= w * (1.0 - 1e-9)
         assert not (feasible & ok[:, None]).any(), f"design {g}: feasible below the result"
@@ -290,13 +283,9 @@ def test_a_narrow_feasible_window_below_a_split_step_is_found():
     # serve 22 GHz at W ≈ 0.1977 mm with one unit cell, feasible only up to the step to two
     # cells at ≈ 0.199 mm; a search that steps over that window settles at ≈ 0.224 mm.
     study = _random_study("Stacked-FET SOI CMOS 45 nm", [22.0, 43.375], 0.0859375, 10.0)
-    plan = build_plan(study)
-    kinds = np.array([c.kind for c in plan.candidates], dtype=object)[plan.row_cand]
-    rows = np.flatnonzero(kinds != CandidateKind.SEPARATE)
-    b, _, _ = sweep._subset(plan, rows)
-    safe = prune_points(b)
+    safe, band = _part(build_plan(study))
     x = 43.3125 - 20.0 * np.log10(np.arange(1, 301, dtype=float))
-    p_req = _requests(plan.row_band[rows], np.stack([x, x]))[21:22]
+    p_req = _requests(band, np.stack([x, x]))[21:22]
     sol = solve(safe, p_req)
     assert sol.w_out_mm[0, 0] == pytest.approx(0.197677, rel=1e-5)
     _no_feasible_below(safe, p_req, sol)
@@ -326,38 +315,25 @@ def test_a_slowly_growing_search_ends_feasible_or_flagged():
     # limit met. Whatever the path, the result must reach the request or say why not.
     from core.pa_chain import _pass, _req_db_of, _required, prepare
 
+    soi = "Stacked-FET SOI CMOS 45 nm"
     cards = tuple(
         dataclasses.replace(c, max_cells=256, cell_width_mm=1.655570921053293)
-        if c.name == "Stacked-FET SOI CMOS 45 nm"
+        if c.name == soi
         else c
         for c in DEFAULT_CARDS.values()
     )
-    bw = 0.026091868449990188
-    bands = tuple(
-        BandSpec(
-            name=f"b{i}",
-            f_low_ghz=f * (1 - bw / 2),
-            f_high_ghz=f * (1 + bw / 2),
-            targets=Targets(gain_db=28.904313565571954, p1db_dbm=25.0, pae_pct=20.0),
-        )
-        for i, f in enumerate([22.296, 69.307, 74.39, 84.309])
-    )
-    s = Study.new()
     est = dataclasses.replace(
-        s.estimator, max_stages=3, max_sections=1, drive_ratio=4.0530021832195295
+        Study.new().estimator, max_stages=3, max_sections=1, drive_ratio=4.0530021832195295
     )
-    cands = tuple(
-        Candidate(name=k.value, kind=k, process="Stacked-FET SOI CMOS 45 nm") for k in CandidateKind
+    study = _random_study(
+        soi,
+        [22.296, 69.307, 74.39, 84.309],
+        0.026091868449990188,
+        28.904313565571954,
+        process_cards=cards,
+        estimator=est,
     )
-    study = dataclasses.replace(
-        s, bands=bands, candidates=cands, process_cards=cards, estimator=est
-    )
-    plan = build_plan(study)
-    kinds = np.array([c.kind for c in plan.candidates], dtype=object)[plan.row_cand]
-    rows = np.flatnonzero(kinds != CandidateKind.SEPARATE)
-    b, _, _ = sweep._subset(plan, rows)
-    safe = prune_points(b)
-    band = plan.row_band[rows]
+    safe, band = _part(build_plan(study))
     p_req = np.where(band == 1, float(rf.dbm_to_w(20.63)), 0.0)[None, :]
     sol = solve(safe, p_req)
     w = np.asarray(sol.w_out_mm)
