@@ -375,6 +375,7 @@ class DieCostPage(QWidget):
         for item in (self.design_line, self.lifetime_line, self.crossover_points):
             self.volume_plot.addItem(item)
         self.crossover_labels: list[pg.TextItem] = []
+        self._mark_xy: list[tuple[float, float]] = []  # crossover marks, (log V, log cost)
         self.crossover_leaders = pg.PlotCurveItem(pen=pg.mkPen("#808080", width=1))
         self.volume_plot.addItem(self.crossover_leaders, ignoreBounds=True)
         self.wafer_edge = pg.PlotCurveItem(pen=pg.mkPen("#404040", width=1))
@@ -646,6 +647,7 @@ class DieCostPage(QWidget):
             if pair in env or self.selected in pair:
                 texts.append((lxy, text))
         self.crossover_points.setData(pts)
+        self._mark_xy = [p["pos"] for p in pts]  # labels keep clear of every mark
         while len(self.crossover_labels) < len(texts):
             label = pg.TextItem(color="#202020", anchor=(0, 1), fill=(255, 255, 255, 210))
             label.setZValue(15)  # under the marks, over the lines
@@ -676,6 +678,14 @@ class DieCostPage(QWidget):
         (x0, x1), (y0, y1) = vb.viewRange()
         boxes: list[tuple[float, float, float, float]] = []
         leaders: list[float] = []
+        r_x, r_y = 6 * px, 6 * py  # half a crossover mark (8 px) plus 2 px, in view units
+        marks = [(mx - r_x, my - r_y, mx + r_x, my + r_y) for mx, my in self._mark_xy]
+        for line in (self.design_line, self.lifetime_line):  # and of the volume lines' labels
+            if line.label.isVisible() and line.label.toPlainText():
+                r = vb.mapSceneToView(line.label.sceneBoundingRect()).boundingRect()
+                boxes.append(
+                    (r.left(), min(r.top(), r.bottom()), r.right(), max(r.top(), r.bottom()))
+                )
 
         def overlap(a: tuple, b: tuple) -> float:
             return max(0.0, min(a[2], b[2]) - max(a[0], b[0])) * max(
@@ -686,6 +696,8 @@ class DieCostPage(QWidget):
             x, y = label.base  # type: ignore[attr-defined]
             rect = label.textItem.boundingRect()
             w, h = rect.width() * px, rect.height() * py
+            # Every mark but the label's own (which its corner touches whatever the placement).
+            others = boxes + [m for m in marks if not (m[0] < x < m[2] and m[1] < y < m[3])]
             best = None
             for k in range(5):
                 for ax, ay in ((0, 1), (0, 0), (1, 1), (1, 0)):
@@ -693,7 +705,7 @@ class DieCostPage(QWidget):
                     box = (x - ax * w, y + dy - (1 - ay) * h, x + (1 - ax) * w, y + dy + ay * h)
                     area = w * h
                     cost = (
-                        sum(overlap(box, b) for b in boxes) + area - overlap(box, (x0, y0, x1, y1))
+                        sum(overlap(box, b) for b in others) + area - overlap(box, (x0, y0, x1, y1))
                     )
                     if best is None or cost < best[0] - 1e-12:
                         best = (cost, (ax, ay), dy, box)

@@ -5,6 +5,7 @@ from __future__ import annotations
 import math
 
 import numpy as np
+import pyqtgraph as pg
 import pytest
 from PySide6.QtCore import Qt
 
@@ -156,6 +157,23 @@ def test_crossovers_are_marked_and_labelled(page):
     shown = [lab.textItem.toPlainText().strip() for lab in page.crossover_labels if lab.isVisible()]
     assert shown and all(t.endswith("radios") and " = " in t for t in shown)
     assert page.design_line.value() == pytest.approx(math.log10(20000))
+
+
+def test_crossover_labels_leave_the_other_marks_uncovered(page, qtbot):
+    # Each label sits beside its own mark; a label over another crossover's mark hides it.
+    page.resize(1400, 900)
+    page.show()
+    qtbot.waitExposed(page)
+    page._place_crossover_labels()
+    vb = page.volume_plot.getViewBox()
+    marks = [vb.mapViewToScene(pg.Point(*xy)) for xy in page._mark_xy]
+    for label in page.crossover_labels:
+        if not label.isVisible():
+            continue
+        rect = label.sceneBoundingRect().adjusted(2, 2, -2, -2)
+        own = vb.mapViewToScene(pg.Point(*label.base))
+        covered = [m for m in marks if rect.contains(m) and (m - own).manhattanLength() > 1]
+        assert not covered, label.textItem.toPlainText()
 
 
 def test_no_candidate_shown_leaves_the_page_empty(page, controller):
